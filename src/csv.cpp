@@ -1,0 +1,148 @@
+#include "coilwright/csv.hpp"
+
+#include <array>
+#include <charconv>
+#include <cmath>
+#include <fstream>
+#include <optional>
+#include <system_error>
+
+#include <fmt/format.h>
+
+#include "coilwright/error.hpp"
+
+namespace coilwright {
+
+namespace detail {
+
+struct CsvField {
+  std::string text;
+  std::size_t column = 1;  // 1-based character column where the field starts
+};
+
+namespace {
+bool is_blank(char c) { return c == ' ' || c == '\t'; }
+}  // namespace
+
+// The splitter behind split_csv_line, keeping where each field starts for error messages.
+std::vector<CsvField> split_csv_fields(std::string_view line) {
+  if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
+  std::vector<CsvField> out;
+  std::size_t i = 0;
+  const std::size_t n = line.size();
+  while (true) {
+    while (i < n && is_blank(line[i])) ++i;
+    CsvField f;
+    f.column = i + 1;
+    if (i < n && line[i] == '"') {
+      ++i;
+      bool closed = false;
+      while (i < n) {
+        if (line[i] == '"') {
+          if (i + 1 < n && line[i + 1] == '"') {
+            f.text.push_back('"');
+            i += 2;
+            continue;
+          }
+          closed = true;
+          ++i;
+          break;
+        }
+        f.text.push_back(line[i++]);
+      }
+      if (!closed) throw InputError(fmt::format("column {}: the quoted field is not closed", f.column));
+      while (i < n && is_blank(line[i])) ++i;
+      if (i < n && line[i] != ',')
+        throw InputError(fmt::format("column {}: text after the closing quote of a quoted field", i + 1));
+    } else {
+      const std::size_t start = i;
+      while (i < n && line[i] != ',') ++i;
+      std::size_t end = i;
+      while (end > start && is_blank(line[end - 1])) --end;
+      f.text.assign(line.substr(start, end - start));
+    }
+    out.push_back(std::move(f));
+    if (i >= n) break;
+    ++i;  // the comma
+  }
+  return out;
+}
+
+}  // namespace detail
+
+std::vector<std::string> split_csv_line(std::string_view line) {
+  std::vector<std::string> out;
+  for (auto& f : detail::split_csv_fields(line)) out.push_back(std::move(f.text));
+  return out;
+}
+
+PointSet read_points_csv(const std::filesystem::path& file) {
+  const std::string name = file.string();
+  std::ifstream in(file);
+  if (!in) throw InputError(SourceLocation{name, 0, 0}, "", "cannot open the points file");
+
+  constexpr std::array<std::string_view, 3> kAxes{"x", "y", "z"};
+  std::optional<std::array<std::size_t, 3>> cols;  // field index of x, y, z
+  std::size_t header_fields = 0;
+  PointSet pts;
+  std::string line;
+  std::size_t line_no = 0;
+  while (std::getline(in, line)) {
+    ++line_no;
+    std::string_view view = line;
+    if (!view.empty() && view.back() == '\r') view.remove_suffix(1);
+    std::size_t first = 0;
+    while (first < view.size() && detail::is_blank(view[first])) ++first;
+    if (first == view.size() || view[first] == '#') continue;
+
+    std::vector<detail::CsvField> fields;
+    try {
+      fields = detail::split_csv_fields(view);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{name, line_no, 0}, "", e.what());
+    }
+    if (!cols) {
+      std::array<std::size_t, 3> found{};
+      for (std::size_t a = 0; a < 3; ++a) {
+        bool seen = false;
+        for (std::size_t k = 0; k < fields.size(); ++k) {
+          if (fields[k].text != kAxes[a]) continue;
+          if (seen)
+            throw InputError(SourceLocation{name, line_no, fields[k].column}, std::string(kAxes[a]),
+                             "the header names this column twice");
+          found[a] = k;
+          seen = true;
+        }
+        if (!seen)
+          throw InputError(SourceLocation{name, line_no, 1}, std::string(kAxes[a]),
+                           fmt::format("the header row must name the columns x, y and z (in metres); found: {}",
+                                       view));
+      }
+      cols = found;
+      header_fields = fields.size();
+      continue;
+    }
+    if (fields.size() != header_fields)
+      throw InputError(SourceLocation{name, line_no, 1}, "",
+                       fmt::format("found {} fields, the header has {}", fields.size(), header_fields));
+    Vec3 p;
+    for (std::size_t a = 0; a < 3; ++a) {
+      const auto& f = fields[(*cols)[a]];
+      double v = 0.0;
+      const char* b = f.text.data();
+      const char* e = b + f.text.size();
+      if (b != e && *b == '+') ++b;
+      const auto [end, ec] = std::from_chars(b, e, v);
+      if (f.text.empty() || ec != std::errc{} || end != e || !std::isfinite(v))
+        throw InputError(SourceLocation{name, line_no, f.column}, std::string(kAxes[a]),
+                         fmt::format("expected a finite number in metres, found \"{}\"", f.text));
+      p[static_cast<Eigen::Index>(a)] = v;
+    }
+    pts.push_back(p);
+  }
+  if (!cols) throw InputError(SourceLocation{name, 0, 0}, "", "the file has no header row naming x, y, z");
+  if (pts.size() == 0) throw InputError(SourceLocation{name, 0, 0}, "", "the file has a header but no data rows");
+  return pts;
+}
+
+}  // namespace coilwright
