@@ -1,0 +1,44 @@
+// Straight filament segment: Hanson-Hirshman closed form with a cancellation-free denominator.
+#include <cmath>
+
+#include "coilwright/constants.hpp"
+#include "coilwright/kernels.hpp"
+
+namespace coilwright::kernels {
+
+void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsView pts,
+                       FieldView out) noexcept {
+  const double ax = a.x(), ay = a.y(), az = a.z();
+  const double bx = b.x(), by = b.y(), bz = b.z();
+  const double c = mu0 * current_A / (4.0 * pi);
+  const double* __restrict px = pts.x;
+  const double* __restrict py = pts.y;
+  const double* __restrict pz = pts.z;
+  double* __restrict ox = out.bx;
+  double* __restrict oy = out.by;
+  double* __restrict oz = out.bz;
+  const std::size_t n = pts.n;
+#pragma GCC ivdep
+  for (std::size_t i = 0; i < n; ++i) {
+    const double ix = ax - px[i], iy = ay - py[i], iz = az - pz[i];  // R_i = a - r
+    const double fx = bx - px[i], fy = by - py[i], fz = bz - pz[i];  // R_f = b - r
+    const double ri = std::sqrt(ix * ix + iy * iy + iz * iz);
+    const double rf = std::sqrt(fx * fx + fy * fy + fz * fz);
+    const double cx = iy * fz - iz * fy;
+    const double cy = iz * fx - ix * fz;
+    const double cz = ix * fy - iy * fx;
+    const double dot = ix * fx + iy * fy + iz * fz;
+    const double rr = ri * rf;
+    const double c2 = cx * cx + cy * cy + cz * cz;
+    // (Ri Rf + Ri.Rf) (Ri Rf - Ri.Rf) = |Ri x Rf|^2: take the form without cancellation.
+    // factor = (Ri+Rf) / (Ri Rf (Ri Rf + Ri.Rf)).
+    const double num = dot >= 0.0 ? 1.0 : rr - dot;
+    const double den = dot >= 0.0 ? rr + dot : c2;
+    const double k = c * (ri + rf) * num / (rr * den);
+    ox[i] += k * cx;
+    oy[i] += k * cy;
+    oz[i] += k * cz;
+  }
+}
+
+}  // namespace coilwright::kernels
