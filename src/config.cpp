@@ -38,7 +38,7 @@ constexpr std::array<Named<RegionKind>, 5> kRegions{{{RegionKind::sphere, "spher
 constexpr std::array<Named<Goal>, 3> kGoals{{{Goal::uniform, "uniform"}, {Goal::gradient, "gradient"}, {Goal::null, "null"}}};
 constexpr std::array<Named<Objective>, 3> kObjectives{
     {{Objective::worst, "worst"}, {Objective::rms, "rms"}, {Objective::order, "order"}}};
-constexpr std::array<std::string_view, 5> kGlobalAlgorithms{"mlsl", "direct", "crs", "isres", "none"};
+constexpr std::array<std::string_view, 6> kGlobalAlgorithms{"multistart", "mlsl", "direct", "crs", "isres", "none"};
 constexpr std::array<std::string_view, 4> kLocalAlgorithms{"bobyqa", "cobyla", "neldermead", "sbplx"};
 
 template <class E, std::size_t N>
@@ -333,7 +333,20 @@ class Reader {
     for (std::size_t i = 0; i < 3; ++i) v[static_cast<Eigen::Index>(i)] = number(*a.get(i), key);
     const double len = v.norm();
     if (!(len > 0.0) || !std::isfinite(len)) fail(at(n), key, fmt::format("a direction must not be zero; found {}", shown(n)));
-    return v / len;
+    return unit(v);
+  }
+  // Normalised; a vector that is already unit to rounding is kept bit for bit, so a design
+  // written back reads the same.
+  static Vec3 unit(const Vec3& v) {
+    const double len = v.norm();
+    return std::abs(len - 1.0) <= 4e-16 ? v : Vec3(v / len);
+  }
+  // The part of `v` across the unit vector `axis`, normalised (zero if parallel).
+  static Vec3 across(const Vec3& v, const Vec3& axis) {
+    const double along = v.dot(axis);
+    if (std::abs(along) <= 1e-15) return v;
+    const Vec3 in_plane = v - along * axis;
+    return in_plane.norm() < 1e-9 ? Vec3::Zero() : unit(in_plane);
   }
 
   // ---- [project] ---------------------------------------------------------------------
@@ -452,19 +465,19 @@ class Reader {
                        join(names_of_circuits())));
     }
 
+    // Free parameters are recorded in this order: lengths, turns, centre.
+    for (auto [name, key] : {std::pair{"radius", CoilKey::radius}, std::pair{"inner_radius", CoilKey::inner_radius},
+                             std::pair{"outer_radius", CoilKey::outer_radius}, std::pair{"width", CoilKey::width},
+                             std::pair{"height", CoilKey::height}, std::pair{"length", CoilKey::length},
+                             std::pair{"separation", CoilKey::separation}})
+      if (const auto* n = t.get(name)) coil_value(*n, ci, key, path + "." + name, {false, Dimension::length});
+    if (const auto* n = t.get("turns")) coil_value(*n, ci, CoilKey::turns, path + ".turns", {true, Dimension::length});
     if (const auto* n = t.get("centre")) {
       const auto& a = array(*n, path + ".centre", 3, "length strings");
       const std::array<CoilKey, 3> keys{CoilKey::centre_x, CoilKey::centre_y, CoilKey::centre_z};
       for (std::size_t i = 0; i < 3; ++i) coil_value(*a.get(i), ci, keys[i], path + ".centre", {false, Dimension::length});
     }
     if (const auto* n = t.get("axis")) coil.axis = direction(*n, path + ".axis");
-    if (const auto* n = t.get("turns")) coil_value(*n, ci, CoilKey::turns, path + ".turns", {true, Dimension::length});
-
-    for (auto [name, key] : {std::pair{"radius", CoilKey::radius}, std::pair{"inner_radius", CoilKey::inner_radius},
-                             std::pair{"outer_radius", CoilKey::outer_radius}, std::pair{"width", CoilKey::width},
-                             std::pair{"height", CoilKey::height}, std::pair{"length", CoilKey::length},
-                             std::pair{"separation", CoilKey::separation}})
-      if (const auto* n = t.get(name)) coil_value(*n, ci, key, path + "." + name, {false, Dimension::length});
 
     if (const auto* n = t.get("opposed")) {
       m_.coils[ci].opposed = boolean(*n, path + ".opposed");
@@ -475,9 +488,9 @@ class Reader {
       const std::string key = path + ".width_axis";
       const Vec3 w = direction(*n, key);
       const Vec3 a = m_.coils[ci].axis;
-      const Vec3 in_plane = w - w.dot(a) * a;
-      if (in_plane.norm() < 1e-9) fail(at(*n), key, fmt::format("width_axis {} is parallel to the axis; it must have a part across it", shown(*n)));
-      m_.coils[ci].width_axis = in_plane.normalized();
+      const Vec3 in_plane = across(w, a);
+      if (in_plane.isZero()) fail(at(*n), key, fmt::format("width_axis {} is parallel to the axis; it must have a part across it", shown(*n)));
+      m_.coils[ci].width_axis = in_plane;
     } else if (m_.coils[ci].shape == Shape::rectangle) {
       m_.coils[ci].width_axis = Frame::from_axis(m_.coils[ci].axis).u;
     }
@@ -698,9 +711,9 @@ class Reader {
     if (const auto* n = t.get("axis")) g.axis = direction(*n, "target.axis");
     if (const auto* n = t.get("reference")) {
       const Vec3 r = direction(*n, "target.reference");
-      const Vec3 in_plane = r - r.dot(g.axis) * g.axis;
-      if (in_plane.norm() < 1e-9) fail(at(*n), "target.reference", "reference is parallel to the axis; it must have a part across it");
-      g.reference = in_plane.normalized();
+      const Vec3 in_plane = across(r, g.axis);
+      if (in_plane.isZero()) fail(at(*n), "target.reference", "reference is parallel to the axis; it must have a part across it");
+      g.reference = in_plane;
     } else {
       g.reference = Frame::from_axis(g.axis).u;
     }

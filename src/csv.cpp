@@ -131,7 +131,7 @@ PointSet read_points_csv(const std::filesystem::path& file) {
       double v = 0.0;
       const char* b = f.text.data();
       const char* e = b + f.text.size();
-      if (b != e && *b == '+') ++b;
+      if (b != e && *b == '+' && !(e - b > 1 && (b[1] == '-' || b[1] == '+'))) ++b;
       const auto [end, ec] = std::from_chars(b, e, v);
       if (f.text.empty() || ec != std::errc{} || end != e || !std::isfinite(v))
         throw InputError(SourceLocation{name, line_no, f.column}, std::string(kAxes[a]),
