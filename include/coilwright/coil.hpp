@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "coilwright/geometry.hpp"
+#include "coilwright/wire.hpp"
 
 namespace coilwright {
 
@@ -41,6 +42,7 @@ struct Coil {
   std::vector<Vec3> vertices_m;   // polygon, relative to centre_m
   std::optional<double> separation_m;  // pair: centres at centre_m +- separation/2 * axis
   bool opposed = false;           // pair: second winding carries reversed current
+  std::optional<Wire> wire;       // the wire it is wound with; absent = ampere-turns only (no R, L, heat)
 
   [[nodiscard]] bool is_pair() const noexcept { return separation_m.has_value(); }
   [[nodiscard]] bool multilayer() const noexcept { return shape == Shape::solenoid && outer_radius_m > 0.0; }

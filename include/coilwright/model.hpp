@@ -9,6 +9,7 @@
 #include "coilwright/coil.hpp"
 #include "coilwright/error.hpp"
 #include "coilwright/geometry.hpp"
+#include "coilwright/hardware_options.hpp"
 
 namespace coilwright {
 
@@ -20,6 +21,7 @@ struct Circuit {
   bool solved = false;
   double min_current_A = -1e300;
   double max_current_A = 1e300;
+  std::optional<Supply> supply;  // the supply's limits, if declared
 };
 
 // The quantities of a coil that the search may vary.
@@ -114,6 +116,7 @@ struct Model {
   std::vector<FreeParameter> free_parameters;
   std::optional<Target> target;
   SearchOptions search;
+  HardwareOptions hardware;  // [hardware]: temperatures, cooling, allowances, AC drive
   std::string source_file;                          // the file it was read from
   std::map<std::string, SourceLocation> locations;  // "coil.<name>", "coil.<name>.<key>", "circuit.<name>", "target.<key>", ...
 
