@@ -173,6 +173,24 @@ double AmbientFit::coefficient_sigma_T(std::size_t t) const {
 
 AmbientField AmbientFit::uniform_and_gradient() const { return {uniform_T, gradient_T_per_m}; }
 
+AmbientField AmbientFit::linearised_at(const Vec3& point_m) const {
+  // Central differences: exact for fields quadratic in r (degree <= 3) up to rounding; the
+  // step 1e-3 r0 keeps the truncation of higher degrees near 1e-6 of their size.
+  const double h = 1e-3 * reference_radius_m;
+  AmbientField a;
+  a.uniform_T = field_at(point_m);
+  for (Eigen::Index j = 0; j < 3; ++j) {
+    const Vec3 e = h * Vec3::Unit(j);
+    a.gradient_T_per_m.col(j) = (field_at(point_m + e) - field_at(point_m - e)) / (2.0 * h);
+  }
+  // Every term is curl- and divergence-free, so the exact gradient is symmetric and traceless:
+  // impose it on the difference quotient to remove its rounding.
+  Mat3& g = a.gradient_T_per_m;
+  g = (0.5 * (g + g.transpose())).eval();
+  g -= (g.trace() / 3.0) * Mat3::Identity();
+  return a;
+}
+
 AmbientFit fit_ambient(const Survey& survey, const AmbientFitOptions& options) {
   options.validate();
   AmbientFit fit;

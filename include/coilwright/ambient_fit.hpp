@@ -72,6 +72,8 @@ struct AmbientFit {
   [[nodiscard]] double coefficient_sigma_T(std::size_t t) const;
   // The uniform and gradient part only (exact when degree <= 2).
   [[nodiscard]] AmbientField uniform_and_gradient() const;
+  // The field and its gradient at another point (the linearisation there; exact when degree <= 2).
+  [[nodiscard]] AmbientField linearised_at(const Vec3& point_m) const;
 };
 
 // Weighted least squares (column-pivoted QR on the whitened system). Weights 1/sigma^2 with
