@@ -48,7 +48,7 @@ std::string residual_csv(const NullArgs& args, const AmbientFit& fit, const Null
       COILWRIGHT_VERSION, COILWRIGHT_GIT_REVISION, args.rig, fit.degree, args.survey);
   for (std::size_t i = 0; i < r.points.size(); ++i) {
     const Vec3 p = r.points[i], a = r.ambient_T[i], b = r.residual_T[i];
-    fmt::format_to(std::back_inserter(out), "{:.9g},{:.9g},{:.9g},{:.9g},{:.9g},{:.9g},{:.9g},{:.9g},{:.9g},{:.9g},{:.9g}\n",
+    fmt::format_to(std::back_inserter(out), "{:.7g},{:.7g},{:.7g},{:.7g},{:.7g},{:.7g},{:.7g},{:.7g},{:.7g},{:.7g},{:.7g}\n",
                    p.x(), p.y(), p.z(), r.weights[i], a.x(), a.y(), a.z(), b.x(), b.y(), b.z(), b.norm());
   }
   return out;
