@@ -16,6 +16,9 @@
 
 #include "coilwright/csv.hpp"
 #include "coilwright/units.hpp"
+#include "coilwright/thermal.hpp"
+#include "coilwright/winding.hpp"
+#include "coilwright/wire.hpp"
 
 namespace coilwright {
 
@@ -89,11 +92,17 @@ namespace {
 
 // ---- keys each table takes -------------------------------------------------------------
 
-constexpr std::array<std::string_view, 5> kTopTables{"project", "circuit", "coil", "target", "search"};
+constexpr std::array<std::string_view, 6> kTopTables{"project", "circuit", "coil", "target", "search", "hardware"};
 constexpr std::array<std::string_view, 2> kProjectKeys{"name", "description"};
-constexpr std::array<std::string_view, 2> kCircuitKeys{"name", "current"};
-constexpr std::array<std::string_view, 8> kCoilCommonKeys{"name", "shape", "circuit", "centre",
-                                                          "axis", "turns", "separation", "opposed"};
+constexpr std::array<std::string_view, 3> kCircuitKeys{"name", "current", "supply"};
+constexpr std::array<std::string_view, 9> kCoilCommonKeys{"name", "shape", "circuit", "centre",
+                                                          "axis", "turns", "separation", "opposed", "wire"};
+constexpr std::array<std::string_view, 3> kSupplyKeys{"max_current", "max_voltage", "max_power"};
+constexpr std::array<std::string_view, 9> kWireKeys{"diameter", "width", "thickness", "corner_radius", "insulation",
+                                                    "material", "resistivity", "temperature_coefficient", "density"};
+constexpr std::array<std::string_view, 10> kHardwareKeys{"ambient_temperature", "operating_temperature", "heat_transfer",
+                                                         "insulation_class", "lead_allowance", "spare", "packing",
+                                                         "frequency", "ramp_rate", "exposure_threshold"};
 constexpr std::array<std::string_view, 10> kCoilShapeKeys{"radius", "inner_radius", "outer_radius", "width", "height",
                                                           "length", "width_axis", "cross_section", "vertices"};
 
@@ -224,8 +233,8 @@ class Reader {
       if (!contains(kTopTables, key)) {
         const bool table = v.is_table() || v.is_array_of_tables();
         fail(at(k.source()), "",
-             table ? fmt::format("unknown table [{}]; the config takes [project], [[circuit]], [[coil]], [target], [search]", key)
-                   : fmt::format("unknown top-level key '{}'; the config takes the tables [project], [[circuit]], [[coil]], [target], [search]", key));
+             table ? fmt::format("unknown table [{}]; the config takes [project], [[circuit]], [[coil]], [target], [search], [hardware]", key)
+                   : fmt::format("unknown top-level key '{}'; the config takes the tables [project], [[circuit]], [[coil]], [target], [search], [hardware]", key));
       }
       m_.locations[key] = at(k.source());
     }
@@ -237,6 +246,8 @@ class Reader {
     for (std::size_t i = 0; i < m_.coils.size(); ++i) check_coil(i);
     if (const auto* t = root.get("target")) read_target(table(*t, "target"));
     if (const auto* s = root.get("search")) read_search(table(*s, "search"));
+    if (const auto* h = root.get("hardware")) read_hardware(table(*h, "hardware"));
+    check_windings_fit();
   }
 
  private:
@@ -398,6 +409,7 @@ class Reader {
       } else {
         c.current_A = quantity(*cur, key, Dimension::current);
       }
+      if (const auto* sup = t.get("supply")) c.supply = read_supply(*sup, path + ".supply");
       m_.circuits.push_back(std::move(c));
     }
   }
@@ -504,8 +516,117 @@ class Reader {
       m_.coils[ci].thickness_m = thick;
     }
     if (const auto* n = t.get("vertices")) read_vertices(*n, ci, path + ".vertices");
+    if (const auto* n = t.get("wire")) m_.coils[ci].wire = read_wire(*n, path + ".wire");
 
     require_shape_keys(t, ci, path, shape_name);
+  }
+
+  // ---- hardware: wire, supply, [hardware] ----------------------------------------------
+  // wire = "AWG 20" | "0.8 mm" | { diameter = "0.8 mm", insulation = "grade 2", material = "copper" }
+  Wire read_wire(const toml::node& n, const std::string& key) {
+    if (n.is_string()) {
+      try {
+        return parse_wire(string(n, key));
+      } catch (const InputError& e) {
+        fail(at(n), key, e.what());
+      }
+    }
+    const auto* t = n.as_table();
+    if (!t) wrong_type(n, key, "a wire spec string (\"AWG 20\", \"0.8 mm\") or a table { diameter = \"0.8 mm\", ... }");
+    check_keys(*t, key, kWireKeys, "a wire table");
+    WireTable w;
+    const std::array<std::pair<std::string_view, std::optional<std::string>*>, 9> fields{{
+        {"diameter", &w.diameter}, {"width", &w.width}, {"thickness", &w.thickness}, {"corner_radius", &w.corner_radius},
+        {"insulation", &w.insulation}, {"material", &w.material}, {"resistivity", &w.resistivity},
+        {"temperature_coefficient", &w.temperature_coefficient}, {"density", &w.density}}};
+    for (const auto& [name, field] : fields)
+      if (const auto* v = t->get(name)) *field = string(*v, key + "." + std::string(name));
+    try {
+      return wire_from_table(w);
+    } catch (const InputError& e) {
+      const toml::node* where = e.key().empty() ? nullptr : t->get(e.key());
+      fail(where ? at(*where) : at(n), e.key().empty() ? key : key + "." + e.key(), e.what());
+    }
+  }
+
+  // supply = { max_current = "5 A", max_voltage = "30 V", max_power = "100 W" }
+  Supply read_supply(const toml::node& n, const std::string& key) {
+    const auto* t = n.as_table();
+    if (!t) wrong_type(n, key, "a table { max_current = \"5 A\", max_voltage = \"30 V\", max_power = \"100 W\" }");
+    check_keys(*t, key, kSupplyKeys, "a supply");
+    Supply s;
+    auto limit = [&](std::string_view name, Dimension d, std::optional<double>& out) {
+      if (const auto* v = t->get(name)) {
+        out = quantity(*v, key + "." + std::string(name), d);
+        if (!(*out > 0.0)) fail(at(*v), key + "." + std::string(name), fmt::format("a supply limit must be positive, found {}", shown(*v)));
+      }
+    };
+    limit("max_current", Dimension::current, s.max_current_A);
+    limit("max_voltage", Dimension::voltage, s.max_voltage_V);
+    limit("max_power", Dimension::power, s.max_power_W);
+    if (!s.max_current_A && !s.max_voltage_V && !s.max_power_W)
+      fail(at(n), key, "a supply needs at least one of max_current, max_voltage, max_power");
+    return s;
+  }
+
+  void read_hardware(const toml::table& t) {
+    m_.locations["hardware"] = at(t);
+    check_keys(t, "hardware", kHardwareKeys, "[hardware]");
+    HardwareOptions& h = m_.hardware;
+    auto get = [&](std::string_view name, Dimension d) -> std::optional<double> {
+      if (const auto* v = t.get(name)) return quantity(*v, "hardware." + std::string(name), d);
+      return std::nullopt;
+    };
+    if (auto v = get("ambient_temperature", Dimension::temperature)) h.ambient_temperature_K = *v;
+    if (auto v = get("operating_temperature", Dimension::temperature)) h.operating_temperature_K = *v;
+    if (auto v = get("heat_transfer", Dimension::heat_transfer)) h.heat_transfer_W_m2K = *v;
+    if (auto v = get("lead_allowance", Dimension::length)) h.lead_allowance_m = *v;
+    if (const auto* v = t.get("spare")) h.spare_fraction = v->is_number() ? number(*v, "hardware.spare") : quantity(*v, "hardware.spare", Dimension::ratio);
+    if (auto v = get("frequency", Dimension::frequency)) h.frequency_Hz = *v;
+    if (auto v = get("exposure_threshold", Dimension::flux_density)) h.exposure_threshold_T = *v;
+    if (const auto* v = t.get("ramp_rate")) {
+      try {
+        h.ramp_rate_A_per_s = parse_ramp_rate(string(*v, "hardware.ramp_rate"));
+      } catch (const UnitParseError& e) {
+        fail(at(*v), "hardware.ramp_rate", e.what());
+      }
+    }
+    if (const auto* v = t.get("insulation_class")) {
+      const std::string text = v->is_integer() ? std::to_string(integer(*v, "hardware.insulation_class"))
+                                               : string(*v, "hardware.insulation_class");
+      const auto cls = thermal_class_from_string(text);
+      if (!cls)
+        fail(at(*v), "hardware.insulation_class",
+             fmt::format("unknown insulation class {}; IEC 60085 classes: 105 (A), 120 (E), 130 (B), 155 (F), 180 (H), "
+                         "200 (N), 220 (R), 250", shown(*v)));
+      h.insulation_class_C = cls->limit_C;
+    }
+    if (const auto* v = t.get("packing")) {
+      const auto p = packing_from_string(string(*v, "hardware.packing"));
+      if (!p) fail(at(*v), "hardware.packing", fmt::format("unknown packing {}; accepted: layered, orthocyclic", shown(*v)));
+      h.packing = *p;
+    }
+    try {
+      h.validate();
+    } catch (const InputError& e) {
+      fail(at(t), "hardware", e.what());
+    }
+  }
+
+  // A wire on a coil whose size and turns are fixed must fit its declared pack: say so at load.
+  void check_windings_fit() {
+    for (std::size_t ci = 0; ci < m_.coils.size(); ++ci) {
+      const Coil& c = m_.coils[ci];
+      if (!c.wire) continue;
+      bool free = false;
+      for (const auto& fp : m_.free_parameters) free = free || fp.coil == ci;
+      if (free) continue;  // checked on every design instead
+      try {
+        (void)wind(c, *c.wire, m_.hardware.packing);
+      } catch (const InputError& e) {
+        fail(m_.location_of("coil." + c.name + ".wire"), "coil." + c.name + ".wire", e.what());
+      }
+    }
   }
 
   std::vector<std::string> names_of_circuits() const {

@@ -1,5 +1,6 @@
 #include "coilwright/design_writer.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <iterator>
 
@@ -85,6 +86,7 @@ void write_coil(std::string& out, const Coil& c) {
     line("separation", q(*c.separation_m, "m"));
     line("opposed", c.opposed ? "true" : "false");
   }
+  if (c.wire) line("wire", wire_toml(*c.wire));
 }
 
 void write_target(std::string& out, const Target& t) {
@@ -164,10 +166,15 @@ std::string write_model_toml(const Model& model) {
     out += "\n[[circuit]]\n";
     out += fmt::format("name = {}\n", toml_quoted(c.name));
     out += fmt::format("current = {}\n", q(c.current_A, "A"));
+    if (c.supply) out += fmt::format("supply = {}\n", supply_toml(*c.supply));
   }
   for (const auto& c : model.coils) detail::write_coil(out, c);
   if (model.target) detail::write_target(out, *model.target);
   detail::write_search(out, model.search);
+  // [hardware] when it matters: any coil has a wire, or a setting differs from its default.
+  const std::string hardware = hardware_toml(model.hardware);
+  const bool wired = std::any_of(model.coils.begin(), model.coils.end(), [](const Coil& c) { return c.wire.has_value(); });
+  if (wired || hardware != hardware_toml(HardwareOptions{})) out += "\n[hardware]\n" + hardware;
   return out;
 }
 

@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cctype>
 #include <cmath>
+#include <exception>
+#include <initializer_list>
 #include <numbers>
 #include <string>
 
@@ -267,6 +269,138 @@ Wire parse_wire(std::string_view spec) {
       "wire \"{}\": {:g} mm is not an IEC 60317 nominal diameter (0.018 mm to 5 mm); the nearest are {}. "
       "For another diameter write a table: {{ diameter = \"{:g} mm\", insulation = \"0.03 mm\" }}",
       spec, d * 1e3, nearest.empty() ? "none" : nearest, d * 1e3));
+}
+
+namespace {
+
+// "<number> <unit>" with the unit one of `units` (name, factor to SI); InputError keyed by `key`.
+double scaled(const std::string& text, std::string_view key,
+              std::initializer_list<std::pair<std::string_view, double>> units) {
+  const std::string t = trim(text);
+  std::size_t used = 0;
+  double v = 0.0;
+  try {
+    v = std::stod(t, &used);
+  } catch (const std::exception&) {
+    used = 0;
+  }
+  std::string accepted;
+  for (const auto& [u, f] : units) accepted += fmt::format("{}\"{}\"", accepted.empty() ? "" : ", ", u);
+  if (used == 0 || !std::isfinite(v))
+    throw InputError(SourceLocation{}, std::string(key), fmt::format("expected a number and a unit ({}), found \"{}\"", accepted, text));
+  const std::string unit = trim(std::string_view(t).substr(used));
+  for (const auto& [u, f] : units)
+    if (unit == u) return v * f;
+  throw InputError(SourceLocation{}, std::string(key), fmt::format("unknown unit \"{}\"; accepted: {}", unit, accepted));
+}
+
+double length_of(const std::string& text, std::string_view key) {
+  try {
+    return parse_quantity(text, Dimension::length);
+  } catch (const UnitParseError& e) {
+    throw InputError(SourceLocation{}, std::string(key), e.what());
+  }
+}
+
+std::string quoted(std::string_view s) {
+  std::string out = "\"";
+  for (char c : s) {
+    if (c == '"' || c == '\\') out += '\\';
+    out += c;
+  }
+  return out + "\"";
+}
+
+}  // namespace
+
+Wire wire_from_table(const WireTable& t) {
+  Material m = copper();
+  if (t.material) {
+    const auto known = material_from_string(lower(trim(*t.material)));
+    if (known) {
+      m = *known;
+    } else {
+      if (!t.resistivity || !t.temperature_coefficient || !t.density)
+        throw InputError(SourceLocation{}, "material",
+                         fmt::format("unknown material \"{}\": name copper or aluminium, or give resistivity, "
+                                     "temperature_coefficient and density", *t.material));
+      m.name = trim(*t.material);
+    }
+  }
+  if (t.resistivity)
+    m.resistivity_ohm_m = scaled(*t.resistivity, "resistivity",
+                                 {{"ohm m", 1.0}, {"ohm mm2/m", 1e-6}, {"ohm mm^2/m", 1e-6}, {"uohm cm", 1e-8}});
+  if (t.temperature_coefficient)
+    m.alpha_per_K = scaled(*t.temperature_coefficient, "temperature_coefficient", {{"/K", 1.0}, {"1/K", 1.0}, {"ppm/K", 1e-6}});
+  if (t.density)
+    m.density_kg_m3 = scaled(*t.density, "density", {{"kg/m3", 1.0}, {"kg/m^3", 1.0}, {"g/cm3", 1e3}, {"g/cm^3", 1e3}});
+
+  const bool rect = t.width || t.thickness;
+  if (rect && t.diameter)
+    throw InputError(SourceLocation{}, "diameter", "give either a diameter (round wire) or width and thickness (rectangular)");
+  if (!rect && !t.diameter)
+    throw InputError(SourceLocation{}, "diameter", "a wire table needs a diameter, or a width and thickness");
+  if (rect && !(t.width && t.thickness))
+    throw InputError(SourceLocation{}, t.width ? "thickness" : "width", "a rectangular wire needs both width and thickness");
+  if (!rect && t.corner_radius) throw InputError(SourceLocation{}, "corner_radius", "a corner radius applies to rectangular wire only");
+
+  const double size = rect ? std::min(length_of(*t.width, "width"), length_of(*t.thickness, "thickness"))
+                           : length_of(*t.diameter, "diameter");
+  int grade = 0;
+  double insulation = 0.0;
+  if (t.insulation) {
+    const std::string ins = lower(trim(*t.insulation));
+    if (ins.starts_with("grade")) {
+      const std::string g = trim(std::string_view(ins).substr(5));
+      if (g != "1" && g != "2" && g != "3")
+        throw InputError(SourceLocation{}, "insulation", fmt::format("\"{}\": the IEC 60317 grades are 1, 2 and 3", *t.insulation));
+      grade = g[0] - '0';
+      insulation = enamel_build_m(size, grade);
+    } else {
+      insulation = length_of(*t.insulation, "insulation");
+    }
+  }
+  Wire w;
+  if (rect) {
+    w = rectangular_wire(length_of(*t.width, "width"), length_of(*t.thickness, "thickness"),
+                         t.corner_radius ? length_of(*t.corner_radius, "corner_radius") : 0.0, insulation, m);
+  } else {
+    w = custom_round_wire(size, insulation, m);
+    if (grade != 0) w.label = fmt::format("{:g} mm, grade {}{}", size * 1e3, grade, material_suffix(m));
+  }
+  w.grade = grade;
+  try {
+    w.validate();
+  } catch (const InputError& e) {
+    throw InputError(SourceLocation{}, "", e.what());
+  }
+  return w;
+}
+
+std::string wire_toml(const Wire& w) {
+  // A catalogue label that parses back to the same wire is written as the string spec.
+  try {
+    const Wire back = parse_wire(w.label);
+    auto same = [](double a, double b) { return std::abs(a - b) <= 1e-12 * std::max(std::abs(a), std::abs(b)); };
+    if (back.form == w.form && same(back.bare_diameter_m, w.bare_diameter_m) && same(back.bare_width_m, w.bare_width_m) &&
+        same(back.bare_thickness_m, w.bare_thickness_m) && same(back.insulation_m, w.insulation_m) &&
+        back.corner_radius_m == w.corner_radius_m && back.material.name == w.material.name &&
+        same(back.material.resistivity_ohm_m, w.material.resistivity_ohm_m))
+      return quoted(w.label);
+  } catch (const InputError&) {
+  }
+  std::string out = "{ ";
+  if (w.form == WireForm::round) {
+    out += fmt::format("diameter = \"{:.17g} m\"", w.bare_diameter_m);
+  } else {
+    out += fmt::format("width = \"{:.17g} m\", thickness = \"{:.17g} m\"", w.bare_width_m, w.bare_thickness_m);
+    if (w.corner_radius_m > 0.0) out += fmt::format(", corner_radius = \"{:.17g} m\"", w.corner_radius_m);
+  }
+  out += fmt::format(", insulation = \"{:.17g} m\", material = {}, resistivity = \"{:.17g} ohm m\", "
+                     "temperature_coefficient = \"{:.17g} /K\", density = \"{:.17g} kg/m3\" }}",
+                     w.insulation_m, quoted(w.material.name), w.material.resistivity_ohm_m, w.material.alpha_per_K,
+                     w.material.density_kg_m3);
+  return out;
 }
 
 }  // namespace coilwright

@@ -2,6 +2,7 @@
 // The settings of the hardware figures ([hardware] in a config) and a circuit's supply limits.
 // Plain data, so the model can hold them.
 #include <optional>
+#include <string>
 
 #include "coilwright/winding.hpp"
 
@@ -28,5 +29,12 @@ struct HardwareOptions {
   // Throws InputError naming the field, its value and the rule broken.
   void validate() const;
 };
+
+// TOML for the design file, reading back to the same values: the inline table of a circuit's
+// `supply = { ... }` and the body of the [hardware] table (key = value lines).
+[[nodiscard]] std::string supply_toml(const Supply& s);
+[[nodiscard]] std::string hardware_toml(const HardwareOptions& o);
+// "10 A/s" (a current per second; also A/ms, kA/s) -> A/s; throws UnitParseError.
+[[nodiscard]] double parse_ramp_rate(std::string_view text);
 
 }  // namespace coilwright

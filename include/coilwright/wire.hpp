@@ -86,4 +86,20 @@ struct Wire {
 // nearest nominal sizes when a metric diameter is not in the series.
 [[nodiscard]] Wire parse_wire(std::string_view spec);
 
+// The table form of a wire spec as written in a config, each value a string with its unit:
+//   { diameter = "0.8 mm", insulation = "grade 2" | "0.04 mm", material = "copper" }
+//   { width = "4 mm", thickness = "1.5 mm", corner_radius = "0.5 mm", insulation = "0.05 mm" }
+//   a material other than copper/aluminium gives resistivity ("1.7e-8 ohm m", "0.0172 ohm mm2/m"),
+//   temperature_coefficient ("0.0039 /K") and density ("8900 kg/m3") (these may also override).
+struct WireTable {
+  std::optional<std::string> diameter, width, thickness, corner_radius, insulation, material, resistivity,
+      temperature_coefficient, density;
+};
+// Throws InputError whose key() names the offending field ("insulation", ...).
+[[nodiscard]] Wire wire_from_table(const WireTable& t);
+
+// The wire as a TOML value that reads back to the same wire: the string spec for catalogue wires,
+// an inline table with every property otherwise.
+[[nodiscard]] std::string wire_toml(const Wire& w);
+
 }  // namespace coilwright
