@@ -11,6 +11,8 @@ void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsVie
   const double ax = a.x(), ay = a.y(), az = a.z();
   const double bx = b.x(), by = b.y(), bz = b.z();
   const double c = mu0 * current_A / (4.0 * pi);
+  // Ri x Rf = Ri x (b - a): one rounded vector instead of two in the cross product.
+  const double ex = bx - ax, ey = by - ay, ez = bz - az;
   const double* __restrict px = pts.x;
   const double* __restrict py = pts.y;
   const double* __restrict pz = pts.z;
@@ -24,9 +26,9 @@ void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsVie
     const double fx = bx - px[i], fy = by - py[i], fz = bz - pz[i];  // R_f = b - r
     const double ri = std::sqrt(ix * ix + iy * iy + iz * iz);
     const double rf = std::sqrt(fx * fx + fy * fy + fz * fz);
-    const double cx = iy * fz - iz * fy;
-    const double cy = iz * fx - ix * fz;
-    const double cz = ix * fy - iy * fx;
+    const double cx = iy * ez - iz * ey;
+    const double cy = iz * ex - ix * ez;
+    const double cz = ix * ey - iy * ex;
     const double dot = ix * fx + iy * fy + iz * fz;
     const double rr = ri * rf;
     const double c2 = cx * cx + cy * cy + cz * cz;

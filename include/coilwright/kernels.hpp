@@ -47,6 +47,9 @@ void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsVie
 //   B_z       = B0 a/(a+rho) [ z+/sqrt(D+) cel(kc+, gamma^2, 1, gamma) - (same at z-) ]
 //   B_rho/rho = B0 4 a^2 [ P'(kc+)/D+^{3/2} - P'(kc-)/D-^{3/2} ],  P' = cel(kc, 1, 1, -1) / k^2,
 // again with k^2 divided out analytically. Writes B_rho/rho [T/(A m)] and B_z [T/A].
+// The form is a difference of the two ends' terms: far from the sheet (distance r >> L) it
+// loses about eps (r/L)^2 relative (measured 3e-14 at r = 10 L), where a sum of loops or the
+// dipole expansion would be more precise.
 void solenoid_sheet_field(double radius_m, double length_m, double turns_per_m, std::size_t n,
                           const double* rho, const double* z, double* brho_over_rho,
                           double* bz) noexcept;
