@@ -12,10 +12,11 @@ std::string SourceLocation::str() const {
 
 namespace {
 std::string compose(const SourceLocation& where, const std::string& key, const std::string& message) {
-  std::string out = where.str();
-  if (!key.empty()) out += out.empty() ? fmt::format("key '{}'", key) : fmt::format(": key '{}'", key);
-  if (!out.empty()) out += ": ";
-  return out + message;
+  const std::string at = where.str();
+  if (at.empty() && key.empty()) return message;
+  if (at.empty()) return fmt::format("key '{}': {}", key, message);
+  if (key.empty()) return fmt::format("{}: {}", at, message);
+  return fmt::format("{}: key '{}': {}", at, key, message);
 }
 }  // namespace
 

@@ -41,6 +41,12 @@ class OutputError : public std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
+// The user stopped a run (Ctrl-C, SIGTERM) after the best results so far were written. Exit code 130.
+class Interrupted : public std::runtime_error {
+ public:
+  Interrupted() : std::runtime_error("stopped by a signal; the best results found so far were written") {}
+};
+
 namespace exit_code {
 inline constexpr int ok = 0;
 inline constexpr int internal = 1;    // a bug: please report
