@@ -89,7 +89,7 @@ struct StrayLimit {
 struct SearchOptions {
   Objective objective = Objective::worst;
   unsigned seed = 1;
-  std::string global_algorithm = "mlsl";      // mlsl | direct | crs | isres | none
+  std::string global_algorithm = "multistart";  // multistart | mlsl | direct | crs | isres | none
   std::string local_algorithm = "bobyqa";     // bobyqa | cobyla | neldermead | sbplx
   int starts = 16;                            // multi-start count for the global stage
   int max_evaluations = 20000;                // total objective evaluations

@@ -1,0 +1,34 @@
+#pragma once
+// Writing a search's ranked designs: designs.csv, design-NN.toml (complete and reloadable) and
+// summary.json. Writers only read finished designs; every file is written atomically.
+#include <filesystem>
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "coilwright/metrics.hpp"
+#include "coilwright/model.hpp"
+#include "coilwright/search.hpp"
+
+namespace coilwright {
+
+// The metrics of one design as JSON (keys in SI units; see README "Outputs").
+[[nodiscard]] nlohmann::json metrics_json(const Metrics& m);
+
+// The ranked table: rank, every metric, and each free parameter as <coil>.<key> in SI units.
+[[nodiscard]] std::string designs_csv(const Model& config, const SearchSummary& summary);
+
+// A machine-readable summary of the run.
+[[nodiscard]] nlohmann::json summary_json(const Model& config, const SearchSummary& summary);
+
+// The file name of the design of a rank (1-based): design-01.toml, ...
+[[nodiscard]] std::string design_file_name(std::size_t rank);
+
+// Writes every result file into `dir` (created if missing). Only our own file names are
+// written; nothing else in the folder is touched.
+void write_results(const std::filesystem::path& dir, const Model& config, const SearchSummary& summary);
+
+// Quotes a CSV field when it holds a comma, quote or line break (RFC 4180).
+[[nodiscard]] std::string csv_field(std::string_view s);
+
+}  // namespace coilwright

@@ -1,0 +1,159 @@
+#include "coilwright/clearance.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numbers>
+
+namespace coilwright {
+
+namespace {
+
+constexpr int kCircleSamples = 180;
+constexpr int kSegmentSubdivisions = 24;
+
+double point_segment_distance(const Vec3& p, const Vec3& a, const Vec3& b) {
+  const Vec3 ab = b - a;
+  const double len2 = ab.squaredNorm();
+  const double t = len2 > 0 ? std::clamp((p - a).dot(ab) / len2, 0.0, 1.0) : 0.0;
+  return (p - (a + t * ab)).norm();
+}
+
+// Distance between the rectangles [r0,r1]x[z0,z1] of two coaxial annuli in the ρ–z plane.
+double rect_gap(double ar0, double ar1, double az0, double az1, double br0, double br1, double bz0, double bz1) {
+  const double dr = std::max({br0 - ar1, ar0 - br1, 0.0});
+  const double dz = std::max({bz0 - az1, az0 - bz1, 0.0});
+  if (dr > 0 || dz > 0) return std::hypot(dr, dz);
+  // Overlapping: minus the penetration depth.
+  return -std::min({ar1 - br0, br1 - ar0, az1 - bz0, bz1 - az0});
+}
+
+std::vector<Vec3> polygon_path(const std::vector<Vec3>& corners) {
+  std::vector<Vec3> path;
+  for (std::size_t i = 0; i < corners.size(); ++i) {
+    const Vec3& a = corners[i];
+    const Vec3& b = corners[(i + 1) % corners.size()];
+    for (int k = 0; k < kSegmentSubdivisions; ++k) path.push_back(a + (b - a) * (double(k) / kSegmentSubdivisions));
+  }
+  return path;
+}
+
+}  // namespace
+
+WindingBody body_of(const Winding& w) {
+  const Coil& c = *w.coil;
+  WindingBody b;
+  b.centre_m = w.centre_m;
+  b.axis = c.axis.normalized();
+  const Frame f = Frame::from_axis(c.axis, c.width_axis);
+  switch (c.shape) {
+    case Shape::loop:
+      b.circular = true;
+      b.rho_in_m = b.rho_out_m = c.radius_m;
+      break;
+    case Shape::pack:
+      b.circular = true;
+      b.rho_in_m = c.inner_radius_m;
+      b.rho_out_m = c.outer_radius_m;
+      b.half_width_m = 0.5 * c.width_m;
+      break;
+    case Shape::solenoid:
+      b.circular = true;
+      b.rho_in_m = c.multilayer() ? c.inner_radius_m : c.radius_m;
+      b.rho_out_m = c.multilayer() ? c.outer_radius_m : c.radius_m;
+      b.half_width_m = 0.5 * c.length_m;
+      break;
+    case Shape::rectangle: {
+      const double hw = 0.5 * c.width_m, hh = 0.5 * c.height_m;
+      b.path_m = polygon_path({w.centre_m + hw * f.u + hh * f.v, w.centre_m - hw * f.u + hh * f.v,
+                               w.centre_m - hw * f.u - hh * f.v, w.centre_m + hw * f.u - hh * f.v});
+      b.tube_radius_m = 0.5 * std::hypot(c.depth_m, c.thickness_m);
+      return b;
+    }
+    case Shape::polygon: {
+      std::vector<Vec3> corners;
+      for (const Vec3& v : c.vertices_m) corners.push_back(w.centre_m + v);
+      b.path_m = polygon_path(corners);
+      return b;
+    }
+  }
+  const double rho_mid = 0.5 * (b.rho_in_m + b.rho_out_m);
+  for (int k = 0; k < kCircleSamples; ++k) {
+    const double phi = 2.0 * std::numbers::pi * k / kCircleSamples;
+    b.path_m.push_back(w.centre_m + rho_mid * (std::cos(phi) * f.u + std::sin(phi) * f.v));
+  }
+  b.tube_radius_m = std::hypot(0.5 * (b.rho_out_m - b.rho_in_m), b.half_width_m);
+  return b;
+}
+
+std::vector<WindingBody> bodies_of(std::span<const Coil> coils) {
+  std::vector<WindingBody> out;
+  for (const Coil& c : coils)
+    for (const Winding& w : windings(c)) out.push_back(body_of(w));
+  return out;
+}
+
+double distance_to(const WindingBody& body, const Vec3& p) {
+  if (body.circular) {
+    const Vec3 d = p - body.centre_m;
+    const double z = d.dot(body.axis);
+    const double rho = (d - z * body.axis).norm();
+    const double dr = std::max({body.rho_in_m - rho, rho - body.rho_out_m, 0.0});
+    const double dz = std::max(std::abs(z) - body.half_width_m, 0.0);
+    return std::hypot(dr, dz);
+  }
+  double best = std::numeric_limits<double>::infinity();
+  const std::size_t n = body.path_m.size();
+  for (std::size_t i = 0; i < n; ++i)
+    best = std::min(best, point_segment_distance(p, body.path_m[i], body.path_m[(i + 1) % n]));
+  return std::max(0.0, best - body.tube_radius_m);
+}
+
+double gap_m(const WindingBody& a, const WindingBody& b) {
+  if (a.circular && b.circular && a.axis.cross(b.axis).norm() < 1e-12) {
+    const Vec3 d = b.centre_m - a.centre_m;
+    const double dz = d.dot(a.axis);
+    if ((d - dz * a.axis).norm() < 1e-12 * std::max(1.0, d.norm()))
+      return rect_gap(a.rho_in_m, a.rho_out_m, -a.half_width_m, a.half_width_m, b.rho_in_m, b.rho_out_m,
+                      dz - b.half_width_m, dz + b.half_width_m);
+  }
+  // Sampled paths: distance of each sample of one path to the segments of the other.
+  double best = std::numeric_limits<double>::infinity();
+  auto scan = [&best](const WindingBody& from, const WindingBody& to) {
+    const std::size_t n = to.path_m.size();
+    for (const Vec3& p : from.path_m)
+      for (std::size_t i = 0; i < n; ++i) best = std::min(best, point_segment_distance(p, to.path_m[i], to.path_m[(i + 1) % n]));
+  };
+  scan(a, b);
+  scan(b, a);
+  return best - a.tube_radius_m - b.tube_radius_m;
+}
+
+Extents extents(std::span<const WindingBody> bodies, const Vec3& centre, const Vec3& axis) {
+  const Vec3 a = axis.normalized();
+  Extents e;
+  e.min_radial_m = std::numeric_limits<double>::infinity();
+  for (const WindingBody& b : bodies) {
+    const bool coaxial = b.circular && b.axis.cross(a).norm() < 1e-12 &&
+                         ((b.centre_m - centre) - (b.centre_m - centre).dot(a) * a).norm() < 1e-12;
+    if (coaxial) {
+      const double z = (b.centre_m - centre).dot(a);
+      e.max_radial_m = std::max(e.max_radial_m, b.rho_out_m);
+      e.min_radial_m = std::min(e.min_radial_m, b.rho_in_m);
+      e.max_axial_m = std::max(e.max_axial_m, std::abs(z) + b.half_width_m);
+      continue;
+    }
+    for (const Vec3& p : b.path_m) {
+      const Vec3 d = p - centre;
+      const double z = d.dot(a);
+      const double rho = (d - z * a).norm();
+      e.max_radial_m = std::max(e.max_radial_m, rho + b.tube_radius_m);
+      e.min_radial_m = std::min(e.min_radial_m, std::max(0.0, rho - b.tube_radius_m));
+      e.max_axial_m = std::max(e.max_axial_m, std::abs(z) + b.tube_radius_m);
+    }
+  }
+  if (bodies.empty()) e.min_radial_m = 0.0;
+  return e;
+}
+
+}  // namespace coilwright
