@@ -54,8 +54,8 @@ TEST_CASE("the hardware report gathers a pair as two windings", "[hardware]") {
   // Series resistance, hot above cold.
   CHECK(*r.circuits[0].resistance_20C_ohm == Approx(2 * a.conductor->resistance_20C_ohm).epsilon(1e-14));
   CHECK(*r.circuits[0].resistance_hot_ohm > *r.circuits[0].resistance_20C_ohm);
-  // Helmholtz field constant at the centre: (4/5)^(3/2) mu0 N / R for thin coils; the packs'
-  // 10 mm cross-section moves it by well under 1 %.
+  // Helmholtz field constant at the centre: (4/5)^(3/2) mu0 N / R for thin coils (classical
+  // Helmholtz-pair result, from memory); the packs' 10 mm cross-section moves it well under 1 %.
   CHECK(a.field_constant_T_per_A.z() == Approx(std::pow(0.8, 1.5) * mu0 * 100 / 0.1).epsilon(0.01));
   REQUIRE(r.circuits[0].ac);
   CHECK(r.circuits[0].ac->reactance_ohm == Approx(2 * M_PI * 50 * *r.circuits[0].inductance_H).epsilon(1e-14));
