@@ -42,7 +42,7 @@ constexpr std::array<Named<Goal>, 3> kGoals{{{Goal::uniform, "uniform"}, {Goal::
 constexpr std::array<Named<Objective>, 3> kObjectives{
     {{Objective::worst, "worst"}, {Objective::rms, "rms"}, {Objective::order, "order"}}};
 constexpr std::array<std::string_view, 6> kGlobalAlgorithms{"multistart", "mlsl", "direct", "crs", "isres", "none"};
-constexpr std::array<std::string_view, 4> kLocalAlgorithms{"bobyqa", "cobyla", "neldermead", "sbplx"};
+constexpr std::array<std::string_view, 5> kLocalAlgorithms{"auto", "bobyqa", "cobyla", "neldermead", "sbplx"};
 
 template <class E, std::size_t N>
 std::string_view name_of(const std::array<Named<E>, N>& table, E v) noexcept {

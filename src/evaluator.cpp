@@ -424,23 +424,6 @@ Metrics Evaluator::metrics(const Model& model) {
   m.centre_field_T = field_of_model(model, centre)[0] + goal_.ambient_at(goal_.centre_m);
   m.ampere_turns = ampere_turns(model);
 
-  // Good-field sphere and cylinder: bisection on the size, valid because the worst deviation
-  // over a region about the centre grows with the region (maximum principle).
-  const Target& t = *model.target;
-  const int res = t.resolution > 0 ? t.resolution : kDefaultResolution;
-  const Frame frame = Frame::from_axis(goal_.axis, t.reference);
-  const double d = nearest_conductor_m(model, goal_.centre_m);
-  const Symmetry sym = samples_.symmetry;
-  m.good_field_radius_m = largest_within(0.999 * d, goal_.tolerance_T, [&](double r) {
-    return max_deviation_on(model, goal_, sphere_surface(goal_.centre_m, frame, r, res, sym));
-  });
-  const double aspect = t.region == RegionKind::cylinder ? t.length_m / (2.0 * t.radius_m) : 1.0;
-  const double s_cyl = largest_within(0.999 * d / std::sqrt(1.0 + aspect * aspect), goal_.tolerance_T, [&](double s) {
-    return max_deviation_on(model, goal_, cylinder_surface(goal_.centre_m, frame, s, 2.0 * aspect * s, res, sym));
-  });
-  m.good_field_cylinder_radius_m = s_cyl;
-  m.good_field_cylinder_length_m = 2.0 * aspect * s_cyl;
-
   // On-axis expansion and the design's order.
   const AxialResponse r = axial_response(model, goal_.centre_m, goal_.axis, kZonalDegree);
   m.zonal_scale_m = 2.0 * r.scale_m;
@@ -449,6 +432,7 @@ Metrics Evaluator::metrics(const Model& model) {
   for (int n = 0; n <= kZonalDegree; ++n)
     b[n] = r.per_ampere.row(n).dot(I) * std::pow(2.0, n) + ambient_term(goal_, n) * std::pow(m.zonal_scale_m, n);
   const int ref = reference_term(goal_);
+  const double central_gradient = b[1] / m.zonal_scale_m;
   const double b_ref = b[ref] != 0.0 ? std::abs(b[ref]) : 1.0;
   for (int n = 0; n <= kZonalDegree; ++n) {
     const double wanted = goal_term(goal_, n) * std::pow(m.zonal_scale_m, n);
@@ -460,6 +444,31 @@ Metrics Evaluator::metrics(const Model& model) {
         m.order = n;
         break;
       }
+  // Good-field sphere and cylinder: the homogeneity of the design's own field about its centre
+  // value (and its own central gradient), as a builder measures it — the currents can always be
+  // trimmed to the wanted value at the centre. Bisection on the size is valid because the worst
+  // deviation over a region about the centre grows with the region (maximum principle).
+  GoalSpec own = goal_;
+  if (own.goal == Goal::uniform) own.field_T = m.centre_field_T;
+  if (own.goal == Goal::gradient) {
+    own.field_T = m.centre_field_T;
+    own.gradient_T_per_m = central_gradient;
+  }
+  const Target& t = *model.target;
+  const int res = t.resolution > 0 ? t.resolution : kDefaultResolution;
+  const Frame frame = Frame::from_axis(goal_.axis, t.reference);
+  const double d = nearest_conductor_m(model, goal_.centre_m);
+  const Symmetry sym = samples_.symmetry;
+  m.good_field_radius_m = largest_within(0.999 * d, goal_.tolerance_T, [&](double radius) {
+    return max_deviation_on(model, own, sphere_surface(goal_.centre_m, frame, radius, res, sym));
+  });
+  const double aspect = t.region == RegionKind::cylinder ? t.length_m / (2.0 * t.radius_m) : 1.0;
+  const double s_cyl = largest_within(0.999 * d / std::sqrt(1.0 + aspect * aspect), goal_.tolerance_T, [&](double s) {
+    return max_deviation_on(model, own, cylinder_surface(goal_.centre_m, frame, s, 2.0 * aspect * s, res, sym));
+  });
+  m.good_field_cylinder_radius_m = s_cyl;
+  m.good_field_cylinder_length_m = 2.0 * aspect * s_cyl;
+
   return m;
 }
 

@@ -40,6 +40,7 @@ struct Metrics {
   double peak_to_peak_relative = 0.0;     // the same over the reference
   std::optional<double> direction_error_rad;  // uniform goal: largest angle between B and the goal
   double fraction_within_tolerance = 0.0; // volume fraction
+  // Good-field volume: within tolerance of the design's own centre field (and central gradient).
   double good_field_radius_m = 0.0;       // largest sphere about the centre within tolerance
   double good_field_cylinder_radius_m = 0.0;  // largest cylinder (target aspect ratio) within tolerance
   double good_field_cylinder_length_m = 0.0;

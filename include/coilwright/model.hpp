@@ -90,7 +90,7 @@ struct SearchOptions {
   Objective objective = Objective::worst;
   unsigned seed = 1;
   std::string global_algorithm = "multistart";  // multistart | mlsl | direct | crs | isres | none
-  std::string local_algorithm = "bobyqa";     // bobyqa | cobyla | neldermead | sbplx
+  std::string local_algorithm = "auto";       // auto (sbplx for worst, bobyqa otherwise) | bobyqa | cobyla | neldermead | sbplx
   int starts = 16;                            // multi-start count for the global stage
   int max_evaluations = 20000;                // total objective evaluations
   double max_time_s = 60.0;                   // wall-clock budget
