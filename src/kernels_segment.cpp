@@ -6,8 +6,19 @@
 
 namespace coilwright::kernels {
 
-void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsView pts,
-                       FieldView out) noexcept {
+namespace {
+
+// Compiled for AVX-512, AVX2+FMA and the baseline; the loader picks the widest the CPU has
+// (GCC function multiversioning), so the default build needs no -march=native.
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) && !defined(__AVX512F__) && \
+    !defined(COILWRIGHT_NO_MULTIVERSION)
+#define COILWRIGHT_CLONES __attribute__((target_clones("arch=x86-64-v4", "arch=x86-64-v3", "default")))
+#else
+#define COILWRIGHT_CLONES
+#endif
+
+COILWRIGHT_CLONES
+void segment_points(const Vec3& a, const Vec3& b, double current_A, PointsView pts, FieldView out) noexcept {
   const double ax = a.x(), ay = a.y(), az = a.z();
   const double bx = b.x(), by = b.y(), bz = b.z();
   const double c = mu0 * current_A / (4.0 * pi);
@@ -41,6 +52,13 @@ void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsVie
     oy[i] += k * cy;
     oz[i] += k * cz;
   }
+}
+
+}  // namespace
+
+void add_segment_field(const Vec3& a, const Vec3& b, double current_A, PointsView pts,
+                       FieldView out) noexcept {
+  segment_points(a, b, current_A, pts, out);
 }
 
 }  // namespace coilwright::kernels

@@ -25,8 +25,13 @@ namespace coilwright::kernels {
 // |r - r'|^2 into D (cos^2 t + kc^2 sin^2 t)). The factor k^2 is divided out analytically in
 // the first step of Bulirsch's iteration, so B_rho/rho has no cancellation near the axis. Both
 // integrals have p = 1, for which Bulirsch's p stays equal to his running mean `em`; they share
-// one iteration (one square root and one reciprocal per step), run over batches of points with
-// a convergence mask. Points on the wire (rho = a, z = 0) give non-finite values.
+// one iteration (one square root per step, no division), run over batches of 16 points with
+// a convergence mask. B_z's first step is formed without the cancellation of terms of size rho
+// that the plain form has far from the loop (it lost about eps rho/a: 1e-13 at 700 a); measured
+// against 40-digit values, both components keep about 1e-15 of |B| everywhere (axis, far field)
+// except within 0.1 a of the wire, where the inputs themselves fix B only to ~eps a/distance.
+// The point loop is compiled for AVX-512, AVX2+FMA and baseline x86-64 and picked at load time.
+// Points on the wire (rho = a, z = 0) give non-finite values.
 void loop_field(double radius_m, std::size_t n, const double* rho, const double* z,
                 double* brho_over_rho, double* bz) noexcept;
 
