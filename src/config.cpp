@@ -207,7 +207,8 @@ std::string coil_rule(CoilKey k, double v) {
     case CoilKey::turns: return v >= 1.0 ? "" : "must be a positive integer";
     case CoilKey::centre_x:
     case CoilKey::centre_y:
-    case CoilKey::centre_z: return "";
+    case CoilKey::centre_z:
+    case CoilKey::wire: return "";
   }
   return "";
 }

@@ -10,6 +10,7 @@
 #include "coilwright/currents.hpp"
 #include "coilwright/error.hpp"
 #include "coilwright/field.hpp"
+#include "coilwright/supply.hpp"
 #include "coilwright/zonal.hpp"
 
 namespace coilwright {
@@ -364,6 +365,15 @@ ConstraintReport Evaluator::constraints(const Model& model) const {
     if (at > *s.max_ampere_turns) {
       r.violation += (at - *s.max_ampere_turns) / *s.max_ampere_turns;
       r.broken.push_back(fmt::format("{:.6g} ampere-turns exceed max_ampere_turns {:.6g}", at, *s.max_ampere_turns));
+    }
+  }
+  const bool supplied = std::any_of(model.circuits.begin(), model.circuits.end(), [](const Circuit& c) { return c.supply.has_value(); });
+  if (supplied) {
+    const Eigen::VectorXd I = currents_of(model);
+    const SupplyCheck check = check_supplies(model, std::span<const double>(I.data(), static_cast<std::size_t>(I.size())), model.hardware);
+    if (check.worst_excess > 0.0) {
+      r.violation += check.worst_excess;
+      for (const SupplyViolation& v : check.violations) r.broken.push_back(v.message);
     }
   }
   if (!s.stray.empty()) {

@@ -1,6 +1,8 @@
 #include "coilwright/model.hpp"
 
+#include <algorithm>
 #include <array>
+#include <cmath>
 #include <stdexcept>
 #include <utility>
 
@@ -9,7 +11,7 @@
 namespace coilwright {
 
 namespace {
-constexpr std::array<std::pair<CoilKey, std::string_view>, 11> kKeyNames{{
+constexpr std::array<std::pair<CoilKey, std::string_view>, 12> kKeyNames{{
     {CoilKey::radius, "radius"},
     {CoilKey::inner_radius, "inner_radius"},
     {CoilKey::outer_radius, "outer_radius"},
@@ -21,6 +23,7 @@ constexpr std::array<std::pair<CoilKey, std::string_view>, 11> kKeyNames{{
     {CoilKey::centre_x, "centre_x"},
     {CoilKey::centre_y, "centre_y"},
     {CoilKey::centre_z, "centre_z"},
+    {CoilKey::wire, "wire"},
 }};
 }  // namespace
 
@@ -49,6 +52,7 @@ double get(const Coil& c, CoilKey k) {
     case CoilKey::centre_x: return c.centre_m.x();
     case CoilKey::centre_y: return c.centre_m.y();
     case CoilKey::centre_z: return c.centre_m.z();
+    case CoilKey::wire: return c.wire_choice;
   }
   throw std::logic_error("unknown coil key");
 }
@@ -66,6 +70,11 @@ void set(Coil& c, CoilKey k, double value) {
     case CoilKey::centre_x: c.centre_m.x() = value; return;
     case CoilKey::centre_y: c.centre_m.y() = value; return;
     case CoilKey::centre_z: c.centre_m.z() = value; return;
+    case CoilKey::wire:
+      if (c.wire_options.empty()) return;
+      c.wire_choice = std::clamp(static_cast<int>(std::lround(value)), 0, static_cast<int>(c.wire_options.size()) - 1);
+      c.wire = c.wire_options[static_cast<std::size_t>(c.wire_choice)];
+      return;
   }
   throw std::logic_error("unknown coil key");
 }

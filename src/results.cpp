@@ -5,6 +5,7 @@
 #include "coilwright/atomic_file.hpp"
 #include "coilwright/config.hpp"
 #include "coilwright/design_writer.hpp"
+#include "coilwright/hardware.hpp"
 
 namespace coilwright {
 
@@ -66,6 +67,7 @@ nlohmann::json metrics_json(const Metrics& m) {
 }
 
 std::string design_file_name(std::size_t rank) { return fmt::format("design-{:02}.toml", rank); }
+std::string schedule_file_name(std::size_t rank) { return fmt::format("design-{:02}-schedule.txt", rank); }
 
 std::string designs_csv(const Model& config, const SearchSummary& summary) {
   std::string out = "rank,feasible,objective,order";
@@ -119,8 +121,12 @@ nlohmann::json summary_json(const Model& config, const SearchSummary& summary) {
 
 void write_results(const std::filesystem::path& dir, const Model& config, const SearchSummary& summary) {
   // Designs first, the table and summary last: a reader that finds summary.json finds the rest.
-  for (std::size_t r = 0; r < summary.designs.size(); ++r)
-    write_file_atomic(dir / design_file_name(r + 1), write_model_toml(summary.designs[r].model));
+  for (std::size_t r = 0; r < summary.designs.size(); ++r) {
+    const Model& design = summary.designs[r].model;
+    write_file_atomic(dir / design_file_name(r + 1), write_model_toml(design));
+    // The winding schedule (with its cautions) travels with every design.
+    write_file_atomic(dir / schedule_file_name(r + 1), format_winding_schedule(hardware_report(design)));
+  }
   write_file_atomic(dir / "designs.csv", designs_csv(config, summary));
   write_file_atomic(dir / "summary.json", summary_json(config, summary).dump(2) + "\n");
 }

@@ -152,10 +152,38 @@ std::vector<std::vector<double>> start_points(const ParameterSpace& space, int s
   return out;
 }
 
+double total_turns(const Model& m) {
+  double n = 0.0;
+  for (const Coil& c : m.coils) n += (c.is_pair() ? 2.0 : 1.0) * c.turns;
+  return n;
+}
+
+// Feasible first; then the objective; among equal objectives (a solved current makes the turns
+// of its windings irrelevant to the field) fewer ampere-turns, then fewer turns (less wire).
 bool better(const Design& a, const Design& b) {
   if (a.constraints.feasible() != b.constraints.feasible()) return a.constraints.feasible();
-  if (a.objective != b.objective) return a.objective < b.objective;
-  return a.metrics.ampere_turns < b.metrics.ampere_turns;
+  if (std::abs(a.objective - b.objective) > 1e-9 * std::max(std::abs(a.objective), std::abs(b.objective)))
+    return a.objective < b.objective;
+  const double at_a = ampere_turns(a.model), at_b = ampere_turns(b.model);
+  if (std::abs(at_a - at_b) > 1e-9 * std::max(at_a, at_b)) return at_a < at_b;
+  return total_turns(a.model) < total_turns(b.model);
+}
+
+// Re-ranks designs by yield under the declared tolerances (feasible first, then yield, then the
+// previous order). Builds are seeded by the search seed, so the ranking is reproducible.
+void rank_by_yield(std::vector<Design>& designs, const SearchOptions& opts) {
+  ToleranceOptions t;
+  t.samples = opts.yield_samples;
+  t.seed = opts.seed;
+  for (Design& d : designs) {
+    const MonteCarloSummary mc = summarise(run_builds(d.model, t, 0, static_cast<std::uint64_t>(t.samples)), false);
+    d.yield = mc.yield;
+    d.yield_standard_error = mc.yield_standard_error;
+  }
+  std::stable_sort(designs.begin(), designs.end(), [](const Design& a, const Design& b) {
+    if (a.constraints.feasible() != b.constraints.feasible()) return a.constraints.feasible();
+    return *a.yield > *b.yield;
+  });
 }
 
 }  // namespace

@@ -43,6 +43,8 @@ struct Coil {
   std::optional<double> separation_m;  // pair: centres at centre_m +- separation/2 * axis
   bool opposed = false;           // pair: second winding carries reversed current
   std::optional<Wire> wire;       // the wire it is wound with; absent = ampere-turns only (no R, L, heat)
+  std::vector<Wire> wire_options; // wire = ["AWG 18", "AWG 20", ...]: the search chooses one (CoilKey::wire)
+  int wire_choice = 0;            // index into wire_options of `wire`
 
   [[nodiscard]] bool is_pair() const noexcept { return separation_m.has_value(); }
   [[nodiscard]] bool multilayer() const noexcept { return shape == Shape::solenoid && outer_radius_m > 0.0; }

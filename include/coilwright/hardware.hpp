@@ -94,8 +94,7 @@ struct HardwareReport {
 // The same with the model's own [hardware] settings.
 [[nodiscard]] HardwareReport hardware_report(const Model& model);
 
-// JSON keys for `evaluate --json`: "circuits", "inductance_matrix", "coils" (names as documented
-// in issue 4), plus "stored_energy", "bill_of_materials", "cautions", "exposure".
+// JSON keys for `evaluate --json`: "circuits", "inductance_matrix", "coils" (see README), plus "stored_energy", "bill_of_materials", "cautions", "exposure".
 [[nodiscard]] nlohmann::json hardware_json(const HardwareReport& report);
 
 // The winding schedule as a readable plain-text table (with the cautions).

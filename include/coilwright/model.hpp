@@ -4,6 +4,7 @@
 #include <map>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "coilwright/coil.hpp"
@@ -16,6 +17,9 @@ namespace coilwright {
 // An independently driven circuit. With `solved`, its current is chosen by the least-squares
 // solve within [min_current_A, max_current_A]; otherwise it is fixed at current_A.
 struct Circuit {
+  Circuit() = default;
+  // A fixed-current circuit (the common case in code and tests).
+  explicit Circuit(std::string name_, double current = 0.0) : name(std::move(name_)), current_A(current) {}
   std::string name;
   double current_A = 0.0;  // fixed value, or the solved value once a design is made
   bool solved = false;
@@ -26,7 +30,7 @@ struct Circuit {
 
 // The quantities of a coil that the search may vary.
 enum class CoilKey { radius, inner_radius, outer_radius, width, height, length, separation, turns,
-                     centre_x, centre_y, centre_z };
+                     centre_x, centre_y, centre_z, wire /* index into Coil::wire_options */ };
 [[nodiscard]] std::string_view to_string(CoilKey k) noexcept;
 [[nodiscard]] std::optional<CoilKey> coil_key_from_string(std::string_view s) noexcept;
 // Read / write that quantity of a coil (SI units; turns as a count).

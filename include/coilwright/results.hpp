@@ -23,6 +23,8 @@ namespace coilwright {
 
 // The file name of the design of a rank (1-based): design-01.toml, ...
 [[nodiscard]] std::string design_file_name(std::size_t rank);
+// Its winding schedule, electrical figures and cautions as text: design-01-schedule.txt, ...
+[[nodiscard]] std::string schedule_file_name(std::size_t rank);
 
 // Writes every result file into `dir` (created if missing). Only our own file names are
 // written; nothing else in the folder is touched.

@@ -8,6 +8,7 @@
 #include "display.hpp"
 #include "coilwright/config.hpp"
 #include "coilwright/evaluator.hpp"
+#include "coilwright/hardware.hpp"
 #include "coilwright/results.hpp"
 
 namespace coilwright::cli {
@@ -63,9 +64,11 @@ void add_evaluate_command(CLI::App& app, const GlobalOptions& global) {
       nlohmann::json currents = nlohmann::json::object();
       for (const Circuit& c : model.circuits) currents[c.name] = c.current_A;
       j["currents"] = currents;
+      j.update(hardware_json(hardware_report(model)));
       fmt::print("{}\n", j.dump(2));
     } else {
       print_metrics(model, m, constraints);
+      fmt::print("\n{}", format_winding_schedule(hardware_report(model)));
     }
   });
 }
