@@ -7,6 +7,7 @@ packages=(
   libeigen3-dev libnlopt-cxx-dev libboost-dev libtomlplusplus-dev
   libcli11-dev libfmt-dev nlohmann-json3-dev catch2
   python3 python3-mpmath python3-scipy python3-numpy
+  pkg-config libplplot-dev chromium python3-pil
 )
 missing=()
 for p in "${packages[@]}"; do

@@ -10,6 +10,7 @@
 #include "progress.hpp"
 #include "coilwright/config.hpp"
 #include "coilwright/error.hpp"
+#include "coilwright/report.hpp"
 #include "coilwright/results.hpp"
 #include "coilwright/search.hpp"
 
@@ -54,7 +55,7 @@ void add_design_command(CLI::App& app, const GlobalOptions& global) {
   auto* cmd = app.add_subcommand("design", "Search a config's free parameters and write ranked designs");
   cmd->footer(
       "Example:\n  coilwright design configs/sensor-calibration-rig.toml --out results/sensor-calibration-rig\n"
-      "Writes designs.csv, design-01.toml, ... and summary.json into the output folder\n"
+      "Writes designs.csv, design-01.toml, ..., summary.json, figures/*.svg and report.html into the output folder\n"
       "(default: results/<project name>/). Ctrl-C stops the search and writes the best designs so far.");
   cmd->add_option("config", args->config, "Config file (TOML)")->required()->check(CLI::ExistingFile);
   cmd->add_option("--out", args->out, "Output folder (default: results/<project name>)");
@@ -73,6 +74,7 @@ void add_design_command(CLI::App& app, const GlobalOptions& global) {
     const SearchSummary summary = run_search(config, hooks);
     progress.finish();
     write_results(out, config, summary);
+    write_report(out);  // figures/*.svg and report.html, from the files just written
     std::signal(SIGINT, SIG_DFL);
     std::signal(SIGTERM, SIG_DFL);
     print_table(config, summary);

@@ -1,0 +1,178 @@
+// coilwright report: rebuild the figures and the HTML report of a results folder.
+// coilwright map: the field of a design on a line, a plane or a 3-D grid, as CSV or VTK.
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "commands.hpp"
+#include "coilwright/config.hpp"
+#include "coilwright/error.hpp"
+#include "coilwright/field_map.hpp"
+#include "coilwright/report.hpp"
+#include "coilwright/units.hpp"
+
+namespace coilwright::cli {
+
+namespace {
+
+struct ReportArgs {
+  std::string dir;
+  bool json = false;
+};
+
+struct MapArgs {
+  std::string design;
+  std::vector<std::string> line;  // two points
+  std::string plane;              // xy | xz | yz
+  bool grid = false;
+  std::string centre = "0,0,0";
+  std::string size;
+  std::string from, to;
+  std::string n;
+  std::string out;
+  bool json = false;
+};
+
+// "a,b,c": each a number in metres or a length with its unit ("120 mm").
+std::vector<double> lengths(const std::string& text, std::size_t expected, const char* option) {
+  std::vector<double> out;
+  std::size_t start = 0;
+  while (true) {
+    const std::size_t comma = text.find(',', start);
+    std::string part = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    const auto b = part.find_first_not_of(' '), e = part.find_last_not_of(' ');
+    part = b == std::string::npos ? "" : part.substr(b, e - b + 1);
+    std::size_t used = 0;
+    double v = 0.0;
+    try {
+      v = std::stod(part, &used);
+    } catch (const std::exception&) {
+      used = 0;
+    }
+    if (used != part.size() || part.empty()) v = parse_quantity(part, Dimension::length);  // throws InputError
+    out.push_back(v);
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  if (out.size() != expected)
+    throw InputError(fmt::format("{} '{}': expected {} comma-separated values, found {}", option, text, expected, out.size()));
+  return out;
+}
+
+std::vector<int> counts(const std::string& text, std::size_t expected) {
+  std::vector<int> out;
+  std::size_t start = 0;
+  while (true) {
+    const std::size_t comma = text.find(',', start);
+    const std::string part = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    std::size_t used = 0;
+    int v = 0;
+    try {
+      v = std::stoi(part, &used);
+    } catch (const std::exception&) {
+      used = 0;
+    }
+    if (used == 0 || used != part.size()) throw InputError(fmt::format("--n '{}': '{}' is not a whole number", text, part));
+    out.push_back(v);
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  if (out.size() == 1 && expected > 1) out.resize(expected, out[0]);
+  if (out.size() != expected) throw InputError(fmt::format("--n '{}': expected {} counts, found {}", text, expected, out.size()));
+  return out;
+}
+
+Vec3 vec(const std::vector<double>& v) { return {v[0], v[1], v[2]}; }
+
+}  // namespace
+
+void add_report_command(CLI::App& app, const GlobalOptions& global) {
+  auto args = std::make_shared<ReportArgs>();
+  auto* cmd = app.add_subcommand("report", "Rebuild the figures and report.html of a results folder");
+  cmd->footer("Example:\n  coilwright report results/sensor-calibration-rig\n"
+              "Reads summary.json and the design files it lists; writes figures/*.svg and report.html there.");
+  cmd->add_option("dir", args->dir, "Results folder written by 'coilwright design'")->required()->check(CLI::ExistingDirectory);
+  cmd->add_flag("--json", args->json, "Print one JSON object listing the files written");
+  cmd->callback([args, &global] {
+    const ReportSummary r = write_report(args->dir);
+    if (args->json) {
+      nlohmann::json j;
+      j["report"] = r.report.string();
+      j["designs"] = r.designs;
+      j["figures"] = nlohmann::json::array();
+      for (const auto& f : r.figures) j["figures"].push_back(f.string());
+      fmt::print("{}\n", j.dump(2));
+    } else if (!global.quiet) {
+      fmt::print("{} ({} designs, {} figures)\n", r.report.string(), r.designs, r.figures.size());
+    }
+  });
+}
+
+void add_map_command(CLI::App& app, const GlobalOptions& global) {
+  auto args = std::make_shared<MapArgs>();
+  auto* cmd = app.add_subcommand("map", "The field of a design on a line, plane or 3-D grid, as CSV or VTK");
+  cmd->footer(
+      "Examples:\n"
+      "  coilwright map results/sensor-calibration-rig/design-01.toml --line 0,0,-120mm 0,0,120mm --n 241 --out axis.csv\n"
+      "  coilwright map results/sensor-calibration-rig/design-01.toml --plane xz --size 300mm,300mm --n 121 --out xz.vtk\n"
+      "  coilwright map results/sensor-calibration-rig/design-01.toml --grid --from -0.1,-0.1,-0.1 --to 0.1,0.1,0.1 --n 21 --out box.vtk\n"
+      "Coordinates are in metres unless a unit is given. Columns: x,y,z [m], Bx,By,Bz,|B| [T], deviation = |B - B_goal| / reference.\n"
+      "VTK files are legacy ASCII STRUCTURED_GRID with the vector B and the scalars B_magnitude and deviation.");
+  cmd->add_option("design", args->design, "Design or config file (TOML)")->required()->check(CLI::ExistingFile);
+  auto* line = cmd->add_option("--line", args->line, "A line from point A to point B: --line x,y,z x,y,z")->expected(2);
+  auto* plane = cmd->add_option("--plane", args->plane, "A plane through --centre spanned by two axes")->check(CLI::IsMember({"xy", "xz", "yz"}));
+  auto* grid = cmd->add_flag("--grid", args->grid, "An axis-aligned 3-D grid from --from to --to");
+  line->excludes(plane)->excludes(grid);
+  plane->excludes(grid);
+  cmd->add_option("--centre", args->centre, "Plane centre x,y,z (default 0,0,0)");
+  cmd->add_option("--size", args->size, "Plane size along its two axes: a,b");
+  cmd->add_option("--from", args->from, "Grid corner x,y,z");
+  cmd->add_option("--to", args->to, "Opposite grid corner x,y,z");
+  cmd->add_option("--n", args->n, "Points per direction: n (all directions) or n1,n2[,n3]")->required();
+  cmd->add_option("--out", args->out, "Output file: .csv or .vtk")->required();
+  cmd->add_flag("--json", args->json, "Print one JSON object describing the map");
+  cmd->callback([args, &global] {
+    const Model model = load_model(args->design);
+    MapLattice lattice;
+    if (!args->line.empty()) {
+      lattice = line_lattice(vec(lengths(args->line[0], 3, "--line")), vec(lengths(args->line[1], 3, "--line")), counts(args->n, 1)[0]);
+    } else if (!args->plane.empty()) {
+      if (args->size.empty()) throw InputError("--plane needs --size a,b");
+      const auto s = lengths(args->size, 2, "--size");
+      const auto n = counts(args->n, 2);
+      lattice = plane_lattice(args->plane, vec(lengths(args->centre, 3, "--centre")), s[0], s[1], n[0], n[1]);
+    } else if (args->grid) {
+      if (args->from.empty() || args->to.empty()) throw InputError("--grid needs --from x,y,z and --to x,y,z");
+      const auto n = counts(args->n, 3);
+      lattice = grid_lattice(vec(lengths(args->from, 3, "--from")), vec(lengths(args->to, 3, "--to")), {n[0], n[1], n[2]});
+    } else {
+      throw InputError("map: give one of --line, --plane or --grid");
+    }
+    const FieldMap map = compute_field_map(model, lattice);
+    write_field_map(args->out, map, model.project.name);
+    std::size_t inside = 0;
+    double worst = 0.0;
+    for (std::size_t i = 0; i < map.points.size(); ++i) {
+      inside += map.in_winding[i] ? 1 : 0;
+      if (std::isfinite(map.deviation[i])) worst = std::max(worst, map.deviation[i]);
+    }
+    if (args->json) {
+      nlohmann::json j;
+      j["file"] = args->out;
+      j["kind"] = std::string(to_string(lattice.kind));
+      j["points"] = map.points.size();
+      j["dimensions"] = lattice.count;
+      j["points_in_windings"] = inside;
+      j["largest_deviation"] = worst;
+      fmt::print("{}\n", j.dump(2));
+    } else if (!global.quiet) {
+      fmt::print("{}: {} points ({} on or inside windings, written as nan); largest relative deviation {:.4g}\n", args->out,
+                 map.points.size(), inside, worst);
+    }
+  });
+}
+
+}  // namespace coilwright::cli

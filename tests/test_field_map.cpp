@@ -1,0 +1,107 @@
+// Field maps: lattices in the documented order, values equal to the field of the model, and the
+// CSV/VTK layouts. Rule first, then inputs that must pass and those that must fail.
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <sstream>
+
+#include "coilwright/config.hpp"
+#include "coilwright/error.hpp"
+#include "coilwright/field.hpp"
+#include "coilwright/field_map.hpp"
+
+using namespace coilwright;
+
+namespace {
+
+const char* kLoopWithTarget = R"(
+[project]
+name = "map-loop"
+[[circuit]]
+name = "main"
+current = "2 A"
+[[coil]]
+name = "loop"
+shape = "loop"
+circuit = "main"
+centre = ["0 m", "0 m", "0 m"]
+axis = [0, 0, 1]
+turns = 5
+radius = "100 mm"
+[target]
+region = "sphere"
+centre = ["0 m", "0 m", "0 m"]
+axis = [0, 0, 1]
+radius = "20 mm"
+goal = "uniform"
+field = ["0 T", "0 T", "62.83 uT"]
+tolerance = "1 %"
+)";
+
+// Relative agreement with an absolute floor (common practice, no source).
+bool near(double a, double b, double rel = 1e-14, double floor = 1e-20) {
+  return std::abs(a - b) <= std::max(floor, rel * std::max(std::abs(a), std::abs(b)));
+}
+
+}  // namespace
+
+TEST_CASE("A lattice runs its first direction fastest, from the origin to origin + edge") {
+  const MapLattice l = grid_lattice(Vec3(-1, -2, -3), Vec3(1, 2, 3), {3, 2, 2});
+  const PointSet p = l.points();
+  REQUIRE(p.size() == 12);
+  CHECK(p[0].isApprox(Vec3(-1, -2, -3)));
+  CHECK(p[1].isApprox(Vec3(0, -2, -3)));
+  CHECK(p[3].isApprox(Vec3(-1, 2, -3)));
+  CHECK(p[11].isApprox(Vec3(1, 2, 3)));
+  const MapLattice xz = plane_lattice("xz", Vec3::Zero(), 0.2, 0.4, 3, 5);
+  CHECK(xz.points()[0].isApprox(Vec3(-0.1, 0, -0.2)));
+  CHECK(xz.points()[14].isApprox(Vec3(0.1, 0, 0.2)));
+}
+
+TEST_CASE("Lattices with no extent, no points or too many points are refused") {
+  CHECK_NOTHROW(line_lattice(Vec3::Zero(), Vec3::UnitZ(), 1));  // one point needs no extent
+  CHECK_THROWS_AS(line_lattice(Vec3::Zero(), Vec3::Zero(), 5), InputError);
+  CHECK_THROWS_AS(line_lattice(Vec3::Zero(), Vec3::UnitZ(), 0), InputError);
+  CHECK_THROWS_AS(grid_lattice(Vec3::Zero(), Vec3::Ones(), {2001, 2001, 2}), InputError);
+  CHECK_THROWS_AS(plane_lattice("xx", Vec3::Zero(), 1, 1, 3, 3), InputError);
+}
+
+TEST_CASE("A map holds the model's field, and points on a winding are marked, not refused") {
+  const Model m = parse_model(kLoopWithTarget, "map-loop.toml");
+  const FieldMap map = compute_field_map(m, line_lattice(Vec3(0, 0, -0.05), Vec3(0.1, 0, 0), 11));
+  const FieldSet direct = field_of_model(m, map.points);
+  for (std::size_t i = 0; i + 1 < map.points.size(); ++i) {
+    CHECK_FALSE(map.in_winding[i]);
+    CHECK(near(map.field_T.bz[i], direct.bz[i]));
+    CHECK(std::isfinite(map.deviation[i]));
+  }
+  // The last point is on the filament (radius 100 mm).
+  CHECK(map.in_winding.back());
+  CHECK(std::isnan(map.field_T.bz.back()));
+  CHECK(std::isnan(map.deviation.back()));
+  CHECK(map.tolerance_relative == Approx(0.01));
+}
+
+TEST_CASE("CSV and VTK layouts name their columns and write nan where undefined") {
+  const Model m = parse_model(kLoopWithTarget, "map-loop.toml");
+  const FieldMap map = compute_field_map(m, line_lattice(Vec3(0, 0, 0), Vec3(0.1, 0, 0), 3));
+  const std::string csv = field_map_csv(map, "title\nwith a break");
+  CHECK(csv.find("x,y,z,Bx,By,Bz,|B|,deviation\n") != std::string::npos);
+  CHECK(csv.find("title with a break") != std::string::npos);
+  CHECK(csv.find("nan") != std::string::npos);
+  const std::string vtk = field_map_vtk(map, "t");
+  std::istringstream in(vtk);
+  std::string line;
+  std::getline(in, line);
+  CHECK(line == "# vtk DataFile Version 3.0");
+  std::getline(in, line);
+  std::getline(in, line);
+  CHECK(line == "ASCII");
+  std::getline(in, line);
+  CHECK(line == "DATASET STRUCTURED_GRID");
+  std::getline(in, line);
+  CHECK(line == "DIMENSIONS 3 1 1");
+  CHECK(vtk.find("VECTORS B double") != std::string::npos);
+  CHECK(vtk.find("SCALARS deviation double 1\nLOOKUP_TABLE default") != std::string::npos);
+  CHECK_THROWS_AS(write_field_map("map.txt", map, "t"), InputError);
+}
