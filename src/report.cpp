@@ -14,6 +14,7 @@
 #include "coilwright/config.hpp"
 #include "coilwright/error.hpp"
 #include "coilwright/hardware.hpp"
+#include "coilwright/metrics.hpp"
 
 namespace coilwright {
 
@@ -205,6 +206,45 @@ std::string figure_html(const Figure& f, const std::string& id) {
                      html_escape(f.caption));
 }
 
+// The worst_relative_deviation column of a tolerance study's builds CSV; empty without the file.
+std::vector<double> worst_deviation_of_builds(const std::filesystem::path& file) {
+  std::ifstream in(file);
+  std::vector<double> out;
+  if (!in) return out;
+  std::string line;
+  if (!std::getline(in, line)) return out;
+  std::size_t column = 0, at = 0;
+  bool found = false;
+  for (std::size_t k = 0;; ++k) {
+    const std::size_t comma = line.find(',', at);
+    if (line.substr(at, comma == std::string::npos ? std::string::npos : comma - at) == "worst_relative_deviation") {
+      column = k;
+      found = true;
+      break;
+    }
+    if (comma == std::string::npos) break;
+    at = comma + 1;
+  }
+  if (!found) throw InputError(SourceLocation{file.string(), 1, 0}, "worst_relative_deviation", "the builds CSV has no such column");
+  std::size_t row = 1;
+  while (std::getline(in, line)) {
+    ++row;
+    if (line.empty()) continue;
+    std::size_t start = 0;
+    for (std::size_t k = 0; k < column && start != std::string::npos; ++k) {
+      start = line.find(',', start);
+      if (start != std::string::npos) ++start;
+    }
+    try {
+      if (start == std::string::npos) throw std::invalid_argument("missing");
+      out.push_back(std::stod(line.substr(start)));
+    } catch (const std::exception&) {
+      throw InputError(SourceLocation{file.string(), row, 0}, "worst_relative_deviation", "not a number");
+    }
+  }
+  return out;
+}
+
 constexpr const char* kStyle = R"(
 body{font-family:system-ui,-apple-system,"Segoe UI",Roboto,sans-serif;max-width:64rem;margin:2rem auto;padding:0 1rem;color:#1b1b1b;line-height:1.45}
 h1{font-size:1.6rem;margin-bottom:.2rem}h2{border-bottom:1px solid #ccd;padding-bottom:.2rem;margin-top:2.2rem}
@@ -292,6 +332,12 @@ ReportSummary write_report(const std::filesystem::path& dir, const FigureOptions
   std::vector<std::vector<Figure>> figures;
   for (std::size_t r = 0; r < designs.size(); ++r) {
     figures.push_back(design_figures(designs[r], options));
+    // A tolerance study written next to the design (coilwright tolerance design-NN.toml --out dir).
+    const std::vector<double> worst = worst_deviation_of_builds(dir / fmt::format("design-{:02}-builds.csv", r + 1));
+    if (!worst.empty() && designs[r].target) {
+      const GoalSpec goal = GoalSpec::from(*designs[r].target);
+      figures.back().push_back(worst_deviation_histogram(worst, goal.tolerance_T / goal.reference_T, options));
+    }
     for (const Figure& f : figures.back()) {
       const auto path = dir / "figures" / fmt::format("design-{:02}-{}.svg", r + 1, f.name);
       write_file_atomic(path, f.svg);

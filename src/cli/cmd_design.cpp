@@ -4,6 +4,7 @@
 #include <string>
 
 #include <fmt/format.h>
+#include <nlohmann/json.hpp>
 
 #include "commands.hpp"
 #include "display.hpp"
@@ -30,6 +31,7 @@ extern "C" void on_stop_signal(int) {
 struct DesignArgs {
   std::string config;
   std::string out;
+  bool json = false;
 };
 
 void print_table(const Model& config, const SearchSummary& summary) {
@@ -59,6 +61,7 @@ void add_design_command(CLI::App& app, const GlobalOptions& global) {
       "(default: results/<project name>/). Ctrl-C stops the search and writes the best designs so far.");
   cmd->add_option("config", args->config, "Config file (TOML)")->required()->check(CLI::ExistingFile);
   cmd->add_option("--out", args->out, "Output folder (default: results/<project name>)");
+  cmd->add_flag("--json", args->json, "Print the run's summary (as in summary.json) instead of the table");
   cmd->callback([args, &global] {
     const Model config = load_model(args->config);
     const std::filesystem::path out = args->out.empty() ? std::filesystem::path("results") / config.project.name
@@ -77,7 +80,10 @@ void add_design_command(CLI::App& app, const GlobalOptions& global) {
     write_report(out);  // figures/*.svg and report.html, from the files just written
     std::signal(SIGINT, SIG_DFL);
     std::signal(SIGTERM, SIG_DFL);
-    print_table(config, summary);
+    if (args->json)
+      fmt::print("{}\n", summary_json(config, summary).dump(2));
+    else
+      print_table(config, summary);
     if (!global.quiet) fmt::print(stderr, "{}\nwritten to {}\n", summary.one_line(), out.string());
     if (summary.reason == StopReason::interrupted) throw Interrupted();
   });

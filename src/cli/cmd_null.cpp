@@ -8,6 +8,7 @@
 #include <nlohmann/json.hpp>
 
 #include "commands.hpp"
+#include "coilwright/figures.hpp"
 #include "display.hpp"
 #include "coilwright/ambient_fit.hpp"
 #include "coilwright/atomic_file.hpp"
@@ -101,7 +102,8 @@ void add_null_command(CLI::App& app, const GlobalOptions& global) {
       "Example:\n  coilwright null configs/cage-null.toml --survey configs/survey-demo.csv\n"
       "Survey CSV: header x,y,z,Bx,By,Bz (+ optional sigma), units in brackets (x[mm], Bx[uT]); no unit = m, T.\n"
       "Writes <rig>-null.toml (the design at the nulling currents, with the fitted ambient) and\n"
-      "<rig>-null.csv (the residual field over the target) next to the rig file, or into --out-dir.");
+      "<rig>-null.csv (the residual field over the target) and <rig>-null-residual.svg (its map)\n"
+      "next to the rig file, or into --out-dir.");
   cmd->add_option("rig", args->rig, "Rig config (TOML) with solved circuits and a target region")->required()->check(CLI::ExistingFile);
   cmd->add_option("--survey", args->survey, "Survey of the ambient field (CSV)")->required()->check(CLI::ExistingFile);
   cmd->add_option("--degree", args->degree, "Ambient model degree: 1 uniform, 2 + gradient, 3.. higher harmonics")
@@ -135,6 +137,10 @@ void add_null_command(CLI::App& app, const GlobalOptions& global) {
     const std::filesystem::path csv_out = stem.string() + "-null.csv";
     write_file_atomic(toml_out, write_model_toml(design));
     write_file_atomic(csv_out, residual_csv(*args, fit, r));
+    // The residual on the plane through the target's axis (ambient linearised at the centre).
+    if (design.target && design.target->ambient)
+      write_file_atomic(stem.string() + "-null-residual.svg",
+                        residual_map_figure(design, *design.target->ambient, design.target->centre_m, r.tolerance_T).svg);
 
     if (args->json) {
       nlohmann::json j;
