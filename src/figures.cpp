@@ -777,9 +777,9 @@ Figure layout_figure(const Model& design, const FigureOptions& o) {
     double x0;
     const char* title;
   };
-  const View views[] = {{fr.w, fr.u, 0.10, "side view"}, {fr.u, fr.v, 0.57, "end view"}};
+  const View views[] = {{fr.w, fr.u, 0.14, "side view"}, {fr.u, fr.v, 0.63, "end view"}};
   for (const View& view : views) {
-    plvpas(view.x0, view.x0 + 0.40, 0.16, 0.88, 1.0);
+    plvpas(view.x0, view.x0 + 0.34, 0.16, 0.88, 1.0);
     plwind(-e, e, -e, e);
     plcol0(kInk);
     plbox("bcnst", 0.0, 0, "bcnstv", 0.0, 0);
