@@ -187,7 +187,7 @@ std::string hardware_section(const Model& model) {
   out += "</tbody></table>\n<table class=\"grid\"><thead><tr><th>winding</th><th>wire</th><th>temperature rise</th><th>self-inductance</th><th>note</th></tr></thead><tbody>\n";
   for (const CoilHardware& c : hw.coils)
     out += fmt::format("<tr><td>{} ({})</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td></tr>\n", html_escape(c.name), c.winding,
-                       c.wire ? "declared" : "–", c.temperature_rise_K ? fmt::format("{:.3g} K", *c.temperature_rise_K) : "–",
+                       c.wire ? html_escape(c.wire->label) : "–", c.temperature_rise_K ? fmt::format("{:.3g} K", *c.temperature_rise_K) : "–",
                        opt_si(c.self_inductance_H, "H"), html_escape(c.error.value_or("")));
   out += "</tbody></table>\n";
   if (hw.stored_energy_J) out += fmt::format("<p>Total stored energy: {}.</p>\n", html_escape(si(*hw.stored_energy_J, "J")));
