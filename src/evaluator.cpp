@@ -367,6 +367,16 @@ ConstraintReport Evaluator::constraints(const Model& model) const {
       r.broken.push_back(fmt::format("{:.6g} ampere-turns exceed max_ampere_turns {:.6g}", at, *s.max_ampere_turns));
     }
   }
+  // A declared wire must fit the winding's space with the turns asked of it.
+  for (const Coil& c : model.coils) {
+    if (!c.wire) continue;
+    try {
+      (void)wind(c, *c.wire, model.hardware.packing);
+    } catch (const InputError& e) {
+      r.violation += 1e-3;  // a fixed step: the search moves away; by how much is not graded
+      r.broken.push_back(e.what());
+    }
+  }
   const bool supplied = std::any_of(model.circuits.begin(), model.circuits.end(), [](const Circuit& c) { return c.supply.has_value(); });
   if (supplied) {
     const Eigen::VectorXd I = currents_of(model);
