@@ -3,6 +3,7 @@
 
 #include <chrono>
 #include <cmath>
+#include <cstdlib>
 #include <ctime>
 #include <fstream>
 #include <sstream>
@@ -268,7 +269,14 @@ using namespace detail;
 std::string report_html(const nlohmann::json& summary, const std::vector<Model>& designs,
                         const std::vector<std::vector<Figure>>& figures, const Figure* comparison) {
   const std::string project = summary.value("project", designs.empty() ? std::string("coilwright") : designs[0].project.name);
-  const std::time_t now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
+  // SOURCE_DATE_EPOCH (the reproducible-builds.org convention) fixes the date, so regenerated
+  // results can be byte-identical.
+  std::time_t now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
+  if (const char* epoch = std::getenv("SOURCE_DATE_EPOCH"); epoch && *epoch) {
+    char* end = nullptr;
+    const long long v = std::strtoll(epoch, &end, 10);
+    if (end && *end == '\0' && v >= 0) now = static_cast<std::time_t>(v);
+  }
   char date[32];
   std::strftime(date, sizeof date, "%Y-%m-%d %H:%M UTC", std::gmtime(&now));
   std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
