@@ -92,11 +92,13 @@ namespace {
 
 // ---- keys each table takes -------------------------------------------------------------
 
-constexpr std::array<std::string_view, 6> kTopTables{"project", "circuit", "coil", "target", "search", "hardware"};
+constexpr std::array<std::string_view, 7> kTopTables{"project", "circuit", "coil", "target", "search", "hardware", "tolerance"};
 constexpr std::array<std::string_view, 2> kProjectKeys{"name", "description"};
 constexpr std::array<std::string_view, 3> kCircuitKeys{"name", "current", "supply"};
-constexpr std::array<std::string_view, 9> kCoilCommonKeys{"name", "shape", "circuit", "centre",
-                                                          "axis", "turns", "separation", "opposed", "wire"};
+constexpr std::array<std::string_view, 10> kCoilCommonKeys{"name", "shape", "circuit", "centre", "axis",
+                                                           "turns", "separation", "opposed", "wire", "tolerance"};
+constexpr std::array<std::string_view, 7> kToleranceKeys{"position", "tilt", "radius", "turns", "current", "wire_diameter",
+                                                         "distribution"};
 constexpr std::array<std::string_view, 3> kSupplyKeys{"max_current", "max_voltage", "max_power"};
 constexpr std::array<std::string_view, 9> kWireKeys{"diameter", "width", "thickness", "corner_radius", "insulation",
                                                     "material", "resistivity", "temperature_coefficient", "density"};
@@ -138,9 +140,10 @@ std::vector<std::string_view> region_keys(RegionKind r) {
   return k;
 }
 constexpr std::array<std::string_view, 2> kAmbientKeys{"uniform", "gradient"};
-constexpr std::array<std::string_view, 14> kSearchKeys{
+constexpr std::array<std::string_view, 16> kSearchKeys{
     "objective",       "seed",     "global",  "local",           "starts",          "max_evaluations", "max_time",
-    "designs",         "max_outer_radius", "max_half_length", "min_bore_radius", "min_gap", "max_ampere_turns", "stray"};
+    "designs",         "max_outer_radius", "max_half_length", "min_bore_radius", "min_gap", "max_ampere_turns", "stray",
+    "rank_by",         "yield_samples"};
 constexpr std::array<std::string_view, 2> kStrayKeys{"point", "max_field"};
 
 template <class Range>
@@ -234,8 +237,8 @@ class Reader {
       if (!contains(kTopTables, key)) {
         const bool table = v.is_table() || v.is_array_of_tables();
         fail(at(k.source()), "",
-             table ? fmt::format("unknown table [{}]; the config takes [project], [[circuit]], [[coil]], [target], [search], [hardware]", key)
-                   : fmt::format("unknown top-level key '{}'; the config takes the tables [project], [[circuit]], [[coil]], [target], [search], [hardware]", key));
+             table ? fmt::format("unknown table [{}]; the config takes [project], [[circuit]], [[coil]], [target], [search], [hardware], [tolerance]", key)
+                   : fmt::format("unknown top-level key '{}'; the config takes the tables [project], [[circuit]], [[coil]], [target], [search], [hardware], [tolerance]", key));
       }
       m_.locations[key] = at(k.source());
     }
@@ -248,6 +251,7 @@ class Reader {
     if (const auto* t = root.get("target")) read_target(table(*t, "target"));
     if (const auto* s = root.get("search")) read_search(table(*s, "search"));
     if (const auto* h = root.get("hardware")) read_hardware(table(*h, "hardware"));
+    if (const auto* t = root.get("tolerance")) m_.tolerances.global = read_tolerance(table(*t, "tolerance"), "tolerance");
     check_windings_fit();
   }
 
@@ -517,6 +521,7 @@ class Reader {
       m_.coils[ci].thickness_m = thick;
     }
     if (const auto* n = t.get("vertices")) read_vertices(*n, ci, path + ".vertices");
+    if (const auto* n = t.get("tolerance")) m_.tolerances.per_coil[m_.coils[ci].name] = read_tolerance(table(*n, path + ".tolerance"), path + ".tolerance");
     if (const auto* n = t.get("wire")) m_.coils[ci].wire = read_wire(*n, path + ".wire");
 
     require_shape_keys(t, ci, path, shape_name);
@@ -941,6 +946,35 @@ class Reader {
     return a;
   }
 
+  // ---- [tolerance] and a coil's `tolerance = { ... }` ---------------------------------
+  ToleranceSpec read_tolerance(const toml::table& t, const std::string& path) {
+    check_keys(t, path, kToleranceKeys, path == "tolerance" ? "[tolerance]" : "a coil's tolerance table");
+    ToleranceSpec s;
+    const auto size = [&](std::string_view key, Dimension d) -> std::optional<double> {
+      const auto* n = t.get(key);
+      if (!n) return std::nullopt;
+      const std::string kp = path + "." + std::string(key);
+      const double v = quantity(*n, kp, d);
+      if (!(v >= 0.0)) fail(at(*n), kp, fmt::format("a tolerance must be >= 0, found {}", shown(*n)));
+      return v;
+    };
+    s.position_m = size("position", Dimension::length);
+    s.tilt_rad = size("tilt", Dimension::angle);
+    s.radius_m = size("radius", Dimension::length);
+    s.current_relative = size("current", Dimension::ratio);
+    s.wire_diameter_m = size("wire_diameter", Dimension::length);
+    if (const auto* n = t.get("turns")) {  // a count: 2 or 0.5
+      s.turns = number(*n, path + ".turns");
+      if (!(*s.turns >= 0.0)) fail(at(*n), path + ".turns", fmt::format("a tolerance must be >= 0, found {}", shown(*n)));
+    }
+    if (const auto* n = t.get("distribution")) {
+      const std::string v = string(*n, path + ".distribution");
+      s.distribution = distribution_from_string(v);
+      if (!s.distribution) fail(at(*n), path + ".distribution", fmt::format("unknown distribution \"{}\"; accepted: normal, uniform", v));
+    }
+    return s;
+  }
+
   // ---- [search] ----------------------------------------------------------------------
   void read_search(const toml::table& t) {
     m_.locations["search"] = at(t);
@@ -982,6 +1016,13 @@ class Reader {
     if (auto v = count("starts", 1)) s.starts = static_cast<int>(*v);
     if (auto v = count("max_evaluations", 1)) s.max_evaluations = static_cast<int>(*v);
     if (auto v = count("designs", 1)) s.designs = static_cast<int>(*v);
+    if (auto v = count("yield_samples", 2)) s.yield_samples = static_cast<int>(*v);
+    if (const auto* n = t.get("rank_by")) {
+      const std::string v = string(*n, "search.rank_by");
+      const auto r = rank_by_from_string(v);
+      if (!r) fail(at(*n), "search.rank_by", fmt::format("unknown ranking \"{}\"; accepted: objective, yield", v));
+      s.rank_by = *r;
+    }
     if (const auto* n = t.get("max_time")) {
       s.max_time_s = quantity(*n, "search.max_time", Dimension::time);
       if (!(s.max_time_s > 0.0)) fail(at(*n), "search.max_time", fmt::format("must be > 0, found {}", shown(*n)));

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <iterator>
+#include <vector>
 
 #include <fmt/format.h>
 
@@ -89,6 +90,19 @@ void write_coil(std::string& out, const Coil& c) {
   if (c.wire) line("wire", wire_toml(*c.wire));
 }
 
+// The keys of a tolerance set, "key = value" each, in config order.
+std::vector<std::string> tolerance_entries(const ToleranceSpec& t) {
+  std::vector<std::string> e;
+  if (t.position_m) e.push_back("position = " + q(*t.position_m, "m"));
+  if (t.tilt_rad) e.push_back("tilt = " + q(*t.tilt_rad, "rad"));
+  if (t.radius_m) e.push_back("radius = " + q(*t.radius_m, "m"));
+  if (t.turns) e.push_back("turns = " + num(*t.turns));
+  if (t.current_relative) e.push_back("current = " + toml_quoted(num(*t.current_relative)));
+  if (t.wire_diameter_m) e.push_back("wire_diameter = " + q(*t.wire_diameter_m, "m"));
+  if (t.distribution) e.push_back("distribution = " + toml_quoted(to_string(*t.distribution)));
+  return e;
+}
+
 void write_target(std::string& out, const Target& t) {
   auto line = [&out](std::string_view key, const std::string& value) { out += fmt::format("{} = {}\n", key, value); };
   out += "\n[target]\n";
@@ -141,6 +155,9 @@ void write_search(std::string& out, const SearchOptions& s) {
   if (s.min_bore_radius_m) line("min_bore_radius", q(*s.min_bore_radius_m, "m"));
   if (s.min_gap_m) line("min_gap", q(*s.min_gap_m, "m"));
   if (s.max_ampere_turns) line("max_ampere_turns", q(*s.max_ampere_turns, "A"));
+  if (s.rank_by != RankBy::objective) line("rank_by", toml_quoted(to_string(s.rank_by)));
+  if (s.rank_by != RankBy::objective || s.yield_samples != SearchOptions{}.yield_samples)
+    line("yield_samples", fmt::format("{}", s.yield_samples));
   for (const auto& st : s.stray) {
     out += "\n[[search.stray]]\n";
     line("point", vec(st.point_m, "m"));
@@ -168,13 +185,24 @@ std::string write_model_toml(const Model& model) {
     out += fmt::format("current = {}\n", q(c.current_A, "A"));
     if (c.supply) out += fmt::format("supply = {}\n", supply_toml(*c.supply));
   }
-  for (const auto& c : model.coils) detail::write_coil(out, c);
+  for (const auto& c : model.coils) {
+    detail::write_coil(out, c);
+    if (const auto it = model.tolerances.per_coil.find(c.name); it != model.tolerances.per_coil.end()) {
+      std::string inline_table;
+      for (const auto& e : detail::tolerance_entries(it->second)) inline_table += (inline_table.empty() ? "" : ", ") + e;
+      out += fmt::format("tolerance = {{ {} }}\n", inline_table);
+    }
+  }
   if (model.target) detail::write_target(out, *model.target);
   detail::write_search(out, model.search);
   // [hardware] when it matters: any coil has a wire, or a setting differs from its default.
   const std::string hardware = hardware_toml(model.hardware);
   const bool wired = std::any_of(model.coils.begin(), model.coils.end(), [](const Coil& c) { return c.wire.has_value(); });
   if (wired || hardware != hardware_toml(HardwareOptions{})) out += "\n[hardware]\n" + hardware;
+  if (model.tolerances.global) {
+    out += "\n[tolerance]\n";
+    for (const auto& e : detail::tolerance_entries(*model.tolerances.global)) out += e + "\n";
+  }
   return out;
 }
 

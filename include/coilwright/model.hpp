@@ -11,6 +11,7 @@
 #include "coilwright/error.hpp"
 #include "coilwright/geometry.hpp"
 #include "coilwright/hardware_options.hpp"
+#include "coilwright/tolerance_spec.hpp"
 
 namespace coilwright {
 
@@ -106,6 +107,8 @@ struct SearchOptions {
   std::optional<double> min_gap_m;            // clear gap between windings
   std::optional<double> max_ampere_turns;     // total |N I| over all coils
   std::vector<StrayLimit> stray;
+  RankBy rank_by = RankBy::objective;          // rank designs by nominal objective or by yield under [tolerance]
+  int yield_samples = 200;                    // Monte Carlo builds per design when ranking by yield
 };
 
 struct Project {
@@ -121,6 +124,7 @@ struct Model {
   std::optional<Target> target;
   SearchOptions search;
   HardwareOptions hardware;  // [hardware]: temperatures, cooling, allowances, AC drive
+  Tolerances tolerances;     // [tolerance] and per-coil overrides: how builds scatter
   std::string source_file;                          // the file it was read from
   std::map<std::string, SourceLocation> locations;  // "coil.<name>", "coil.<name>.<key>", "circuit.<name>", "target.<key>", ...
 

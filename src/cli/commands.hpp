@@ -16,6 +16,7 @@ void add_design_command(CLI::App& app, const GlobalOptions& global);
 void add_null_command(CLI::App& app, const GlobalOptions& global);
 void add_compare_command(CLI::App& app, const GlobalOptions& global);
 void add_calibrate_command(CLI::App& app, const GlobalOptions& global);
+void add_tolerance_command(CLI::App& app, const GlobalOptions& global);
 void add_report_command(CLI::App& app, const GlobalOptions& global);
 void add_map_command(CLI::App& app, const GlobalOptions& global);
 

@@ -29,6 +29,7 @@ int main(int argc, char** argv) {
   cli::add_null_command(app, global);
   cli::add_compare_command(app, global);
   cli::add_calibrate_command(app, global);
+  cli::add_tolerance_command(app, global);
   cli::add_report_command(app, global);
   cli::add_map_command(app, global);
 
