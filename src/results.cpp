@@ -74,6 +74,8 @@ std::string designs_csv(const Model& config, const SearchSummary& summary) {
   for (const Column& c : kMetricColumns) out += fmt::format(",{}", c.name);
   for (const FreeParameter& p : config.free_parameters) out += "," + csv_field(p.label(config.coils));
   for (const Circuit& c : config.circuits) out += "," + csv_field(c.name + ".current");
+  const bool yields = !summary.designs.empty() && summary.designs.front().yield.has_value();  // rank_by = "yield"
+  if (yields) out += ",yield,yield_standard_error";
   out += "\n";
   for (std::size_t r = 0; r < summary.designs.size(); ++r) {
     const Design& d = summary.designs[r];
@@ -82,6 +84,7 @@ std::string designs_csv(const Model& config, const SearchSummary& summary) {
     for (const Column& c : kMetricColumns) out += fmt::format(",{:.17g}", c.get(d.metrics));
     for (const FreeParameter& p : config.free_parameters) out += fmt::format(",{:.17g}", get(d.model.coils[p.coil], p.key));
     for (const Circuit& c : d.model.circuits) out += fmt::format(",{:.17g}", c.current_A);
+    if (yields) out += fmt::format(",{:.17g},{:.17g}", d.yield.value_or(0.0), d.yield_standard_error.value_or(0.0));
     out += "\n";
   }
   return out;
@@ -107,6 +110,7 @@ nlohmann::json summary_json(const Model& config, const SearchSummary& summary) {
     e["broken_constraints"] = d.constraints.broken;
     e["objective"] = d.objective;
     e["rounding_cost"] = d.rounding_cost();
+    if (d.yield) e["yield"] = {{"value", *d.yield}, {"standard_error", d.yield_standard_error.value_or(0.0)}};
     e["metrics"] = metrics_json(d.metrics);
     nlohmann::json params = nlohmann::json::object();
     for (const FreeParameter& p : config.free_parameters) params[p.label(config.coils)] = get(d.model.coils[p.coil], p.key);

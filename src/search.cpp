@@ -12,6 +12,7 @@
 
 #include "coilwright/error.hpp"
 #include "coilwright/parallel.hpp"
+#include "coilwright/tolerance.hpp"
 
 namespace coilwright {
 
@@ -350,6 +351,8 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
     d.metrics = ev.metrics(d.model);
     summary.designs.push_back(std::move(d));
   }
+  // Tolerance-aware ranking: the fraction of seeded Monte Carlo builds that meet the target.
+  if (opts.rank_by == RankBy::yield && model.tolerances.declared()) rank_by_yield(summary.designs, opts);
   summary.seconds_metrics = std::chrono::duration<double>(Clock::now() - t_metrics).count();
   summary.evaluations = budget.evaluations.load();
   summary.coil_evaluations = ev.coil_evaluations();

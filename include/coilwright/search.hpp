@@ -5,6 +5,7 @@
 // by local polishing; turns are rounded and the rest re-polished; distinct optima are ranked.
 #include <atomic>
 #include <functional>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -22,6 +23,8 @@ struct Design {
   double objective_unrounded = 0.0;  // before integer turns were rounded
   ConstraintReport constraints;
   int start = 0;                   // which start found it
+  std::optional<double> yield;     // fraction of Monte Carlo builds meeting the target ([search] rank_by = "yield")
+  std::optional<double> yield_standard_error;
   [[nodiscard]] double rounding_cost() const { return objective - objective_unrounded; }
 };
 
