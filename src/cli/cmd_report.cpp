@@ -52,7 +52,15 @@ std::vector<double> lengths(const std::string& text, std::size_t expected, const
     } catch (const std::exception&) {
       used = 0;
     }
-    if (used != part.size() || part.empty()) v = parse_quantity(part, Dimension::length);  // throws InputError
+    if (used != part.size() || part.empty()) {
+      try {
+        v = parse_quantity(part, Dimension::length);
+      } catch (const InputError&) {
+        throw;
+      } catch (const std::exception& why) {
+        throw InputError(fmt::format("{} '{}': {}", option, text, why.what()));
+      }
+    }
     out.push_back(v);
     if (comma == std::string::npos) break;
     start = comma + 1;
@@ -166,7 +174,7 @@ void add_map_command(CLI::App& app, const GlobalOptions& global) {
       j["points"] = map.points.size();
       j["dimensions"] = lattice.count;
       j["points_in_windings"] = inside;
-      j["largest_deviation"] = worst;
+      j["largest_deviation"] = map.reference_T > 0 ? nlohmann::json(worst) : nlohmann::json(nullptr);  // null without a target
       fmt::print("{}\n", j.dump(2));
     } else if (!global.quiet) {
       fmt::print("{}: {} points ({} on or inside windings, written as nan); largest relative deviation {:.4g}\n", args->out,
