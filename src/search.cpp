@@ -283,12 +283,14 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
   const auto t_local = Clock::now();
   std::vector<Design> found(points.size());
   std::vector<char> ran(points.size(), 0);
+  std::vector<std::vector<double>> local_x(points.size()), polished_x(points.size());  // for a distributed run
   const bool inner_parallel = points.size() == 1;
 #ifdef COILWRIGHT_HAVE_OPENMP
 #pragma omp parallel for schedule(dynamic, 1) if (!inner_parallel)
 #endif
   for (std::size_t s = 0; s < points.size(); ++s) {
     if (budget.should_stop() && s > 0) continue;
+    if (hooks.runs_start && !hooks.runs_start(s)) continue;
     Evaluator ev(model);
     LocalRun run(space, ev, model, opts.objective, budget);
     const auto x = run.run(points[s], opts.local_algorithm, per_start);
@@ -305,13 +307,32 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
       for (std::size_t i = 0; i < space.size(); ++i) polish.frozen[i] = space.is_integer(i);
       const auto xr = polish.run(x, opts.local_algorithm, per_start / 2 + 20);
       space.apply(d.model, xr, true);
+      polished_x[s] = xr;
     }
+    local_x[s] = x;
     d.objective = ev.objective(d.model, opts.objective, &d.constraints);
     d.start = static_cast<int>(s);
     found[s] = std::move(d);
     ran[s] = 1;
   }
   (void)inner_parallel;
+  if (hooks.exchange) {
+    // Rebuild the designs of starts run elsewhere, by the same steps as above.
+    const std::vector<char> ran_here = ran;
+    hooks.exchange(local_x, polished_x, ran);
+    Evaluator ev(model);
+    for (std::size_t s = 0; s < points.size(); ++s) {
+      if (!ran[s] || ran_here[s]) continue;
+      Design d;
+      d.model = model;
+      space.apply(d.model, local_x[s], false);
+      d.objective_unrounded = ev.objective(d.model, opts.objective);
+      if (!polished_x[s].empty()) space.apply(d.model, polished_x[s], true);
+      d.objective = ev.objective(d.model, opts.objective, &d.constraints);
+      d.start = static_cast<int>(s);
+      found[s] = std::move(d);
+    }
+  }
 
   SearchSummary summary;
   summary.seconds_search = std::chrono::duration<double>(t_local - budget.t0).count() +

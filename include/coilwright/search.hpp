@@ -48,6 +48,14 @@ struct SearchHooks {
   std::function<void(long, long, double)> progress;
   // Set from outside (e.g. a signal handler) to stop early and keep the best found so far.
   const std::atomic<bool>* stop = nullptr;
+  // Distributed searches (MPI): whether this process runs start s (every start when unset), and
+  // an exchange that fills in, for the starts other processes ran, their final unit vectors
+  // (the local optimum, then the re-polished one with integers rounded) and sets ran[s].
+  // Designs are rebuilt from those vectors exactly as a single process builds them.
+  std::function<bool(std::size_t)> runs_start;
+  std::function<void(std::vector<std::vector<double>>& local_x, std::vector<std::vector<double>>& polished_x,
+                     std::vector<char>& ran)>
+      exchange;
 };
 
 // The searched parameters of a model, mapped to the unit box for the optimiser.
