@@ -45,7 +45,7 @@ bool near(double a, double b, double rel = 1e-14, double floor = 1e-20) {
 
 }  // namespace
 
-TEST_CASE("A lattice runs its first direction fastest, from the origin to origin + edge") {
+TEST_CASE("A lattice runs its first direction fastest from the origin to origin + edge") {
   const MapLattice l = grid_lattice(Vec3(-1, -2, -3), Vec3(1, 2, 3), {3, 2, 2});
   const PointSet p = l.points();
   REQUIRE(p.size() == 12);
@@ -58,7 +58,7 @@ TEST_CASE("A lattice runs its first direction fastest, from the origin to origin
   CHECK(xz.points()[14].isApprox(Vec3(0.1, 0, 0.2)));
 }
 
-TEST_CASE("Lattices with no extent, no points or too many points are refused") {
+TEST_CASE("Lattices with no extent or no points or too many points are refused") {
   CHECK_NOTHROW(line_lattice(Vec3::Zero(), Vec3::UnitZ(), 1));  // one point needs no extent
   CHECK_THROWS_AS(line_lattice(Vec3::Zero(), Vec3::Zero(), 5), InputError);
   CHECK_THROWS_AS(line_lattice(Vec3::Zero(), Vec3::UnitZ(), 0), InputError);
@@ -66,7 +66,7 @@ TEST_CASE("Lattices with no extent, no points or too many points are refused") {
   CHECK_THROWS_AS(plane_lattice("xx", Vec3::Zero(), 1, 1, 3, 3), InputError);
 }
 
-TEST_CASE("A map holds the model's field, and points on a winding are marked, not refused") {
+TEST_CASE("A map holds the model's field and marks points on a winding instead of refusing them") {
   const Model m = parse_model(kLoopWithTarget, "map-loop.toml");
   const FieldMap map = compute_field_map(m, line_lattice(Vec3(0, 0, -0.05), Vec3(0.1, 0, 0), 11));
   const FieldSet direct = field_of_model(m, map.points);

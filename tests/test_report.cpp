@@ -48,7 +48,7 @@ TEST_CASE("html_escape turns the five markup characters into references") {
   CHECK(html_escape("plain µT") == "plain µT");
 }
 
-TEST_CASE("The default figure options are valid, and bad ones name the field") {
+TEST_CASE("The default figure options are valid and bad ones name the field") {
   CHECK_NOTHROW(FigureOptions{}.validate());
   FigureOptions o;
   o.map_points = 3;
