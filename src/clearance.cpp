@@ -1,6 +1,8 @@
 #include "coilwright/clearance.hpp"
 
 #include <algorithm>
+#include <array>
+#include <utility>
 #include <cmath>
 #include <limits>
 #include <numbers>
@@ -77,11 +79,18 @@ WindingBody body_of(const Winding& w) {
       return b;
     }
   }
+  // The unit circle once for all: body_of runs in every search evaluation.
+  static const std::array<std::pair<double, double>, kCircleSamples> kCircle = [] {
+    std::array<std::pair<double, double>, kCircleSamples> circle{};
+    for (int k = 0; k < kCircleSamples; ++k) {
+      const double phi = 2.0 * std::numbers::pi * k / kCircleSamples;
+      circle[static_cast<std::size_t>(k)] = {std::cos(phi), std::sin(phi)};
+    }
+    return circle;
+  }();
   const double rho_mid = 0.5 * (b.rho_in_m + b.rho_out_m);
-  for (int k = 0; k < kCircleSamples; ++k) {
-    const double phi = 2.0 * std::numbers::pi * k / kCircleSamples;
-    b.path_m.push_back(w.centre_m + rho_mid * (std::cos(phi) * f.u + std::sin(phi) * f.v));
-  }
+  b.path_m.reserve(kCircleSamples);
+  for (const auto& [cos_phi, sin_phi] : kCircle) b.path_m.push_back(w.centre_m + rho_mid * (cos_phi * f.u + sin_phi * f.v));
   b.tube_radius_m = std::hypot(0.5 * (b.rho_out_m - b.rho_in_m), b.half_width_m);
   return b;
 }

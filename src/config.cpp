@@ -522,7 +522,30 @@ class Reader {
     }
     if (const auto* n = t.get("vertices")) read_vertices(*n, ci, path + ".vertices");
     if (const auto* n = t.get("tolerance")) m_.tolerances.per_coil[m_.coils[ci].name] = read_tolerance(table(*n, path + ".tolerance"), path + ".tolerance");
-    if (const auto* n = t.get("wire")) m_.coils[ci].wire = read_wire(*n, path + ".wire");
+    if (const auto* n = t.get("wire")) {
+      if (const auto* list = n->as_array()) {
+        // A list of wires: the search chooses one, as an integer free parameter.
+        const std::string key = path + ".wire";
+        if (list->empty()) fail(at(*n), key, "an empty list of wires; give one wire spec or a list of several");
+        for (std::size_t i = 0; i < list->size(); ++i)
+          m_.coils[ci].wire_options.push_back(read_wire(*list->get(i), fmt::format("{}[{}]", key, i)));
+        m_.coils[ci].wire = m_.coils[ci].wire_options.front();
+        if (list->size() > 1) {
+          FreeParameter fp;
+          fp.coil = ci;
+          fp.key = CoilKey::wire;
+          fp.integer = true;
+          fp.where = at(*n);
+          fp.min = 0.0;
+          fp.max = static_cast<double>(list->size() - 1);
+          fp.start = 0.0;
+          free_index_[{ci, CoilKey::wire}] = m_.free_parameters.size();
+          m_.free_parameters.push_back(fp);
+        }
+      } else {
+        m_.coils[ci].wire = read_wire(*n, path + ".wire");
+      }
+    }
 
     require_shape_keys(t, ci, path, shape_name);
   }

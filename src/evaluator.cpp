@@ -11,6 +11,7 @@
 #include "coilwright/error.hpp"
 #include "coilwright/field.hpp"
 #include "coilwright/supply.hpp"
+#include "coilwright/winding.hpp"
 #include "coilwright/zonal.hpp"
 
 namespace coilwright {
@@ -372,9 +373,9 @@ ConstraintReport Evaluator::constraints(const Model& model) const {
     if (!c.wire) continue;
     try {
       (void)wind(c, *c.wire, model.hardware.packing);
-    } catch (const InputError& e) {
+    } catch (const InputError& misfit) {
       r.violation += 1e-3;  // a fixed step: the search moves away; by how much is not graded
-      r.broken.push_back(e.what());
+      r.broken.push_back(misfit.what());
     }
   }
   const bool supplied = std::any_of(model.circuits.begin(), model.circuits.end(), [](const Circuit& c) { return c.supply.has_value(); });

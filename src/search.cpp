@@ -50,11 +50,13 @@ struct Budget {
   Clock::time_point last_progress;
   double best = std::numeric_limits<double>::infinity();
 
+  // The evaluation budget is split between the starts in advance (NLopt's maxeval per start), so
+  // the outcome does not depend on which thread runs which start; only the clock and a signal
+  // stop a run from outside, and those are the documented sources of non-reproducibility.
   bool should_stop() {
     if (hooks->stop && hooks->stop->load()) interrupted = true;
-    if (evaluations.load() >= max_evaluations) out_of_evaluations = true;
     if (std::chrono::duration<double>(Clock::now() - t0).count() > max_seconds) out_of_time = true;
-    return interrupted || out_of_evaluations || out_of_time;
+    return interrupted || out_of_time;
   }
   void report(double value) {
     std::lock_guard lock(progress_mutex);
@@ -89,7 +91,7 @@ struct LocalRun {
       if (!frozen[i]) x[i] = free_x[k++];
     space->apply(model, x, round_integers);
     const double f = evaluator->objective(model, objective);
-    ++budget->evaluations;
+    if (++budget->evaluations >= budget->max_evaluations) budget->out_of_evaluations = true;
     if (f < best) best = f, best_x = x;
     budget->report(f);
     if (budget->should_stop() && opt) opt->force_stop();
