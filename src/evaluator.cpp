@@ -233,7 +233,7 @@ void Evaluator::choose_nulled_terms(const Model& model) {
     if (!f.same_as) ++searched;
   for (const Circuit& c : model.circuits)
     if (c.solved) ++solved;
-  const int wanted = searched + std::max(0, solved - 1) + (solved == 0 ? 0 : 0);
+  const int wanted = searched + std::max(0, solved - 1);  // one current sets the scale
   // A term vanishes by symmetry when it is negligible at the start geometry and at a second one.
   Model other = model;
   for (const FreeParameter& f : model.free_parameters)
