@@ -92,7 +92,7 @@ namespace {
 
 // ---- keys each table takes -------------------------------------------------------------
 
-constexpr std::array<std::string_view, 7> kTopTables{"project", "circuit", "coil", "target", "search", "hardware", "tolerance"};
+constexpr std::array<std::string_view, 8> kTopTables{"project", "circuit", "coil", "target", "search", "hardware", "tolerance", "map"};
 constexpr std::array<std::string_view, 2> kProjectKeys{"name", "description"};
 constexpr std::array<std::string_view, 3> kCircuitKeys{"name", "current", "supply"};
 constexpr std::array<std::string_view, 10> kCoilCommonKeys{"name", "shape", "circuit", "centre", "axis",
@@ -145,6 +145,7 @@ constexpr std::array<std::string_view, 16> kSearchKeys{
     "designs",         "max_outer_radius", "max_half_length", "min_bore_radius", "min_gap", "max_ampere_turns", "stray",
     "rank_by",         "yield_samples"};
 constexpr std::array<std::string_view, 2> kStrayKeys{"point", "max_field"};
+constexpr std::array<std::string_view, 9> kMapKeys{"name", "kind", "from", "to", "plane", "centre", "size", "points", "format"};
 
 template <class Range>
 bool contains(const Range& r, std::string_view s) {
@@ -237,8 +238,8 @@ class Reader {
       if (!contains(kTopTables, key)) {
         const bool table = v.is_table() || v.is_array_of_tables();
         fail(at(k.source()), "",
-             table ? fmt::format("unknown table [{}]; the config takes [project], [[circuit]], [[coil]], [target], [search], [hardware], [tolerance]", key)
-                   : fmt::format("unknown top-level key '{}'; the config takes the tables [project], [[circuit]], [[coil]], [target], [search], [hardware], [tolerance]", key));
+             table ? fmt::format("unknown table [{}]; the config takes [project], [[circuit]], [[coil]], [target], [search], [hardware], [tolerance], [[map]]", key)
+                   : fmt::format("unknown top-level key '{}'; the config takes the tables [project], [[circuit]], [[coil]], [target], [search], [hardware], [tolerance], [[map]]", key));
       }
       m_.locations[key] = at(k.source());
     }
@@ -252,6 +253,7 @@ class Reader {
     if (const auto* s = root.get("search")) read_search(table(*s, "search"));
     if (const auto* h = root.get("hardware")) read_hardware(table(*h, "hardware"));
     if (const auto* t = root.get("tolerance")) m_.tolerances.global = read_tolerance(table(*t, "tolerance"), "tolerance");
+    if (const auto* mp = root.get("map")) read_maps(array_of_tables(*mp, "map"));
     check_windings_fit();
   }
 
@@ -996,6 +998,110 @@ class Reader {
       if (!s.distribution) fail(at(*n), path + ".distribution", fmt::format("unknown distribution \"{}\"; accepted: normal, uniform", v));
     }
     return s;
+  }
+
+  // ---- [[map]] -----------------------------------------------------------------------
+  void read_maps(const toml::array& arr) {
+    for (std::size_t i = 0; i < arr.size(); ++i) {
+      const auto& t = *arr.get(i)->as_table();
+      const std::string tmp = fmt::format("map[{}]", i + 1);
+      const auto* name_node = t.get("name");
+      if (!name_node) fail(at(t), tmp, "a [[map]] needs a 'name' (it names the files: design-01-<name>.csv)");
+      MapRequest r;
+      r.name = string(*name_node, tmp + ".name");
+      const bool name_ok = !r.name.empty() && r.name.size() <= 64 && r.name != "." && r.name != ".." &&
+                           std::all_of(r.name.begin(), r.name.end(), [](char c) {
+                             return std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_' || c == '.';
+                           });
+      if (!name_ok)
+        fail(at(*name_node), tmp + ".name",
+             fmt::format("the name {} is not a file-name stem; use 1 to 64 letters, digits, '-', '_' or '.'", shown(*name_node)));
+      const std::string path = "map." + r.name;
+      for (const auto& other : m_.maps)
+        if (other.name == r.name)
+          fail(at(*name_node), path, fmt::format("duplicate map name \"{}\" (first declared at {})", r.name, m_.location_of(path).str()));
+      m_.locations[path] = at(t);
+      check_keys(t, path, kMapKeys, "a [[map]]");
+      const auto* kind = t.get("kind");
+      if (!kind) fail(at(t), path, "a [[map]] needs a 'kind': \"line\", \"plane\" or \"grid\"");
+      const std::string k = string(*kind, path + ".kind");
+      if (k == "line")
+        r.kind = MapKind::line;
+      else if (k == "plane")
+        r.kind = MapKind::plane;
+      else if (k == "grid")
+        r.kind = MapKind::grid;
+      else
+        fail(at(*kind), path + ".kind", fmt::format("unknown map kind \"{}\"; accepted: line, plane, grid", k));
+      // Keys that belong to the other kinds are refused rather than silently ignored.
+      const auto needs = [&](std::string_view key) -> const toml::node& {
+        const auto* n = t.get(key);
+        if (!n) fail(at(t), path, fmt::format("a {} map needs '{}'", k, key));
+        return *n;
+      };
+      const auto refuse = [&](std::string_view key) {
+        if (const auto* n = t.get(key)) fail(at(*n), path + "." + std::string(key), fmt::format("a {} map does not take '{}'", k, key));
+      };
+      const int dims = r.kind == MapKind::line ? 1 : r.kind == MapKind::plane ? 2 : 3;
+      if (r.kind == MapKind::plane) {
+        refuse("from");
+        refuse("to");
+        const auto& pl = needs("plane");
+        r.plane = string(pl, path + ".plane");
+        if (r.plane != "xy" && r.plane != "xz" && r.plane != "yz")
+          fail(at(pl), path + ".plane", fmt::format("unknown plane \"{}\"; accepted: xy, xz, yz", r.plane));
+        r.centre_m = m_.target ? m_.target->centre_m : Vec3::Zero();
+        if (const auto* c = t.get("centre")) r.centre_m = vec3_quantity(*c, path + ".centre", Dimension::length);
+        const auto& sz = array(needs("size"), path + ".size", 2, "length strings");
+        for (std::size_t d = 0; d < 2; ++d) {
+          r.size_m[d] = quantity(*sz.get(d), path + ".size", Dimension::length);
+          if (!(r.size_m[d] > 0.0)) fail(at(*sz.get(d)), path + ".size", fmt::format("must be > 0, found {}", shown(*sz.get(d))));
+        }
+      } else {
+        refuse("plane");
+        refuse("centre");
+        refuse("size");
+        r.from_m = vec3_quantity(needs("from"), path + ".from", Dimension::length);
+        r.to_m = vec3_quantity(needs("to"), path + ".to", Dimension::length);
+        if (r.from_m == r.to_m) fail(at(*t.get("to")), path + ".to", "'to' must differ from 'from'");
+      }
+      // points: one count for every direction, or one per direction.
+      const auto& pts = needs("points");
+      const auto count = [&](const toml::node& n) {
+        const long long v = integer(n, path + ".points");
+        if (v < 2 || v > 100000) fail(at(n), path + ".points", fmt::format("a point count must be 2 to 100000, found {}", v));
+        return static_cast<int>(v);
+      };
+      if (pts.is_array()) {
+        const auto& a = array(pts, path + ".points", static_cast<std::size_t>(dims), "point counts");
+        for (std::size_t d = 0; d < a.size(); ++d) r.points[d] = count(*a.get(d));
+      } else {
+        const int n = count(pts);
+        for (int d = 0; d < dims; ++d) r.points[static_cast<std::size_t>(d)] = n;
+      }
+      const double total = static_cast<double>(r.points[0]) * r.points[1] * r.points[2];
+      if (total > static_cast<double>(kMaxConfigMapPoints))
+        fail(at(pts), path + ".points",
+             fmt::format("{:.0f} points in one map; a config map takes at most {} (use 'coilwright map' for larger ones)", total,
+                         kMaxConfigMapPoints));
+      if (const auto* f = t.get("format")) {
+        r.formats.clear();
+        const auto one = [&](const toml::node& n) {
+          const std::string v = string(n, path + ".format");
+          if (v != "csv" && v != "vtk")
+            fail(at(n), path + ".format", fmt::format("unknown map format \"{}\"; accepted: csv, vtk, or both as [\"csv\", \"vtk\"]", v));
+          const MapFormat mf = v == "vtk" ? MapFormat::vtk : MapFormat::csv;
+          if (std::find(r.formats.begin(), r.formats.end(), mf) == r.formats.end()) r.formats.push_back(mf);
+        };
+        if (const auto* fa = f->as_array()) {
+          if (fa->empty()) fail(at(*f), path + ".format", "give at least one format: \"csv\", \"vtk\" or [\"csv\", \"vtk\"]");
+          for (std::size_t j = 0; j < fa->size(); ++j) one(*fa->get(j));
+        } else {
+          one(*f);
+        }
+      }
+      m_.maps.push_back(std::move(r));
+    }
   }
 
   // ---- [search] ----------------------------------------------------------------------

@@ -6,6 +6,7 @@
 #include <vector>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "coilwright/config.hpp"
 
@@ -165,6 +166,30 @@ void write_search(std::string& out, const SearchOptions& s) {
   }
 }
 
+void write_map(std::string& out, const MapRequest& r) {
+  auto line = [&out](std::string_view key, const std::string& value) { out += fmt::format("{} = {}\n", key, value); };
+  out += "\n[[map]]\n";
+  line("name", toml_quoted(r.name));
+  line("kind", toml_quoted(to_string(r.kind)));
+  int dims = 3;
+  if (r.kind == MapKind::plane) {
+    dims = 2;
+    line("plane", toml_quoted(r.plane));
+    line("centre", vec(r.centre_m, "m"));
+    line("size", fmt::format("[{}, {}]", q(r.size_m[0], "m"), q(r.size_m[1], "m")));
+  } else {
+    dims = r.kind == MapKind::line ? 1 : 3;
+    line("from", vec(r.from_m, "m"));
+    line("to", vec(r.to_m, "m"));
+  }
+  std::vector<std::string> counts;
+  for (int d = 0; d < dims; ++d) counts.push_back(fmt::format("{}", r.points[static_cast<std::size_t>(d)]));
+  line("points", dims == 1 ? counts[0] : fmt::format("[{}]", fmt::join(counts, ", ")));
+  std::vector<std::string> formats;
+  for (const MapFormat f : r.formats) formats.push_back(toml_quoted(to_string(f)));
+  line("format", fmt::format("[{}]", fmt::join(formats, ", ")));
+}
+
 }  // namespace
 }  // namespace detail
 
@@ -203,6 +228,7 @@ std::string write_model_toml(const Model& model) {
     out += "\n[tolerance]\n";
     for (const auto& e : detail::tolerance_entries(*model.tolerances.global)) out += e + "\n";
   }
+  for (const MapRequest& r : model.maps) detail::write_map(out, r);
   return out;
 }
 

@@ -24,6 +24,8 @@ std::string_view to_string(MapKind k) noexcept {
   return "?";
 }
 
+std::string_view to_string(MapFormat f) noexcept { return f == MapFormat::vtk ? "vtk" : "csv"; }
+
 void MapLattice::validate() const {
   static constexpr const char* kDir[] = {"first", "second", "third"};
   std::size_t total = 1;
@@ -104,6 +106,15 @@ MapLattice grid_lattice(const Vec3& from_m, const Vec3& to_m, std::array<int, 3>
   l.count = n;
   l.validate();
   return l;
+}
+
+MapLattice lattice_of(const MapRequest& r) {
+  switch (r.kind) {
+    case MapKind::line: return line_lattice(r.from_m, r.to_m, r.points[0]);
+    case MapKind::plane: return plane_lattice(r.plane, r.centre_m, r.size_m[0], r.size_m[1], r.points[0], r.points[1]);
+    case MapKind::grid: return grid_lattice(r.from_m, r.to_m, r.points);
+  }
+  throw InputError("map: unknown kind");
 }
 
 FieldMap compute_field_map(const Model& model, const MapLattice& lattice) {
@@ -201,6 +212,22 @@ void write_field_map(const std::filesystem::path& file, const FieldMap& map, con
     write_file_atomic(file, field_map_vtk(map, title));
   else
     throw InputError(fmt::format("map: output '{}' must end in .csv or .vtk", file.string()));
+}
+
+std::string map_file_name(const std::string& stem, const MapRequest& request, MapFormat format) {
+  return fmt::format("{}-{}.{}", stem, request.name, to_string(format));
+}
+
+std::vector<std::filesystem::path> write_config_maps(const std::filesystem::path& dir, const std::string& stem, const Model& model) {
+  std::vector<std::filesystem::path> files;
+  for (const MapRequest& r : model.maps) {
+    const FieldMap map = compute_field_map(model, lattice_of(r));
+    for (const MapFormat f : r.formats) {
+      files.push_back(dir / map_file_name(stem, r, f));
+      write_file_atomic(files.back(), f == MapFormat::vtk ? field_map_vtk(map, model.project.name) : field_map_csv(map, model.project.name));
+    }
+  }
+  return files;
 }
 
 }  // namespace coilwright

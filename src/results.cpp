@@ -5,6 +5,7 @@
 #include "coilwright/atomic_file.hpp"
 #include "coilwright/config.hpp"
 #include "coilwright/design_writer.hpp"
+#include "coilwright/field_map.hpp"
 #include "coilwright/hardware.hpp"
 
 namespace coilwright {
@@ -66,7 +67,8 @@ nlohmann::json metrics_json(const Metrics& m) {
   return j;
 }
 
-std::string design_file_name(std::size_t rank) { return fmt::format("design-{:02}.toml", rank); }
+std::string design_stem(std::size_t rank) { return fmt::format("design-{:02}", rank); }
+std::string design_file_name(std::size_t rank) { return design_stem(rank) + ".toml"; }
 std::string schedule_file_name(std::size_t rank) { return fmt::format("design-{:02}-schedule.txt", rank); }
 
 std::string designs_csv(const Model& config, const SearchSummary& summary) {
@@ -106,6 +108,9 @@ nlohmann::json summary_json(const Model& config, const SearchSummary& summary) {
     nlohmann::json e;
     e["rank"] = r + 1;
     e["file"] = design_file_name(r + 1);
+    e["maps"] = nlohmann::json::array();
+    for (const MapRequest& m : d.model.maps)
+      for (const MapFormat f : m.formats) e["maps"].push_back(map_file_name(design_stem(r + 1), m, f));
     e["feasible"] = d.constraints.feasible();
     e["broken_constraints"] = d.constraints.broken;
     e["objective"] = d.objective;
@@ -130,6 +135,7 @@ void write_results(const std::filesystem::path& dir, const Model& config, const 
     write_file_atomic(dir / design_file_name(r + 1), write_model_toml(design));
     // The winding schedule (with its cautions) travels with every design.
     write_file_atomic(dir / schedule_file_name(r + 1), format_winding_schedule(hardware_report(design)));
+    (void)write_config_maps(dir, design_stem(r + 1), design);
   }
   write_file_atomic(dir / "designs.csv", designs_csv(config, summary));
   write_file_atomic(dir / "summary.json", summary_json(config, summary).dump(2) + "\n");

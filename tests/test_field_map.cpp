@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "coilwright/config.hpp"
+#include "coilwright/design_writer.hpp"
 #include "coilwright/error.hpp"
 #include "coilwright/field.hpp"
 #include "coilwright/field_map.hpp"
@@ -104,4 +105,92 @@ TEST_CASE("CSV and VTK layouts name their columns and write nan where undefined"
   CHECK(vtk.find("VECTORS B double") != std::string::npos);
   CHECK(vtk.find("SCALARS deviation double 1\nLOOKUP_TABLE default") != std::string::npos);
   CHECK_THROWS_AS(write_field_map("map.txt", map, "t"), InputError);
+}
+
+TEST_CASE("[[map]] tables are read, written back with a design and give the lattice they name") {
+  const std::string maps = R"(
+[[map]]
+name = "axis"
+kind = "line"
+from = ["0 m", "0 m", "-120 mm"]
+to = ["0 m", "0 m", "120 mm"]
+points = 241
+
+[[map]]
+name = "xz"
+kind = "plane"
+plane = "xz"
+size = ["300 mm", "200 mm"]
+points = [31, 21]
+format = ["csv", "vtk"]
+
+[[map]]
+name = "box"
+kind = "grid"
+from = ["-10 mm", "-10 mm", "-10 mm"]
+to = ["10 mm", "10 mm", "10 mm"]
+points = 5
+format = "vtk"
+)";
+  const Model m = parse_model(std::string(kLoopWithTarget) + maps, "maps.toml");
+  REQUIRE(m.maps.size() == 3);
+  CHECK(m.maps[0].kind == MapKind::line);
+  CHECK(m.maps[0].points == std::array<int, 3>{241, 1, 1});
+  CHECK(m.maps[0].formats == std::vector<MapFormat>{MapFormat::csv});
+  CHECK(m.maps[1].centre_m == m.target->centre_m);  // a plane defaults to the target's centre
+  CHECK(m.maps[1].size_m == std::array<double, 2>{0.3, 0.2});
+  CHECK(m.maps[1].formats == std::vector<MapFormat>{MapFormat::csv, MapFormat::vtk});
+  CHECK(m.maps[2].points == std::array<int, 3>{5, 5, 5});
+  CHECK(m.location_of("map.xz").line == 31);  // its [[map]] header
+
+  const MapLattice axis = lattice_of(m.maps[0]);
+  CHECK(axis.size() == 241);
+  CHECK(axis.points()[120].isApprox(Vec3::Zero()));
+  CHECK(lattice_of(m.maps[1]).points()[0].isApprox(Vec3(-0.15, 0, -0.1)));
+  CHECK(lattice_of(m.maps[2]).size() == 125);
+
+  // A design file carries its maps unchanged.
+  const Model back = parse_model(write_model_toml(m), "back.toml");
+  REQUIRE(back.maps.size() == 3);
+  for (std::size_t i = 0; i < 3; ++i) {
+    CHECK(back.maps[i].name == m.maps[i].name);
+    CHECK(back.maps[i].kind == m.maps[i].kind);
+    CHECK(back.maps[i].from_m == m.maps[i].from_m);
+    CHECK(back.maps[i].to_m == m.maps[i].to_m);
+    CHECK(back.maps[i].centre_m == m.maps[i].centre_m);
+    CHECK(back.maps[i].size_m == m.maps[i].size_m);
+    CHECK(back.maps[i].points == m.maps[i].points);
+    CHECK(back.maps[i].formats == m.maps[i].formats);
+  }
+  CHECK(map_file_name("design-01", m.maps[1], MapFormat::vtk) == "design-01-xz.vtk");
+}
+
+TEST_CASE("[[map]] mistakes name the map, the key and what is accepted") {
+  const auto refused = [](const std::string& map_table, const std::string& message) {
+    INFO(map_table);
+    try {
+      (void)parse_model(std::string(kLoopWithTarget) + map_table, "bad-map.toml");
+      FAIL("accepted");
+    } catch (const InputError& e) {
+      CHECK_THAT(e.what(), Catch::Contains(message));
+    }
+  };
+  refused("[[map]]\nkind = \"line\"\n", "a [[map]] needs a 'name'");
+  refused("[[map]]\nname = \"../x\"\nkind = \"line\"\n", "is not a file-name stem");
+  refused("[[map]]\nname = \"a\"\nkind = \"cube\"\n", "unknown map kind \"cube\"; accepted: line, plane, grid");
+  refused("[[map]]\nname = \"a\"\nkind = \"line\"\nfrom = [\"0 m\", \"0 m\", \"0 m\"]\npoints = 3\n", "a line map needs 'to'");
+  refused("[[map]]\nname = \"a\"\nkind = \"line\"\nplane = \"xz\"\n", "a line map does not take 'plane'");
+  refused("[[map]]\nname = \"a\"\nkind = \"plane\"\nplane = \"xw\"\n", "unknown plane \"xw\"; accepted: xy, xz, yz");
+  refused("[[map]]\nname = \"a\"\nkind = \"plane\"\nplane = \"xy\"\nsize = [\"1 m\", \"0 m\"]\npoints = 3\n", "must be > 0");
+  refused("[[map]]\nname = \"a\"\nkind = \"plane\"\nplane = \"xy\"\nsize = [\"1 m\", \"1 m\"]\npoints = [3, 3, 3]\n",
+          "expected an array of 2 point counts, found 3 elements");
+  refused("[[map]]\nname = \"a\"\nkind = \"grid\"\nfrom = [\"0 m\", \"0 m\", \"0 m\"]\nto = [\"1 m\", \"1 m\", \"1 m\"]\npoints = 1000\n",
+          "a config map takes at most 1000000");
+  refused("[[map]]\nname = \"a\"\nkind = \"line\"\nfrom = [\"0 m\", \"0 m\", \"0 m\"]\nto = [\"1 m\", \"0 m\", \"0 m\"]\npoints = 1\n",
+          "a point count must be 2 to 100000, found 1");
+  refused("[[map]]\nname = \"a\"\nkind = \"line\"\nfrom = [\"0 m\", \"0 m\", \"0 m\"]\nto = [\"1 m\", \"0 m\", \"0 m\"]\npoints = 3\nformat = \"png\"\n",
+          "unknown map format \"png\"; accepted: csv, vtk");
+  refused("[[map]]\nname = \"a\"\nkind = \"line\"\nfrom = [\"0 m\", \"0 m\", \"0 m\"]\nto = [\"1 m\", \"0 m\", \"0 m\"]\npoints = 3\n"
+          "[[map]]\nname = \"a\"\nkind = \"line\"\n",
+          "duplicate map name \"a\"");
 }

@@ -8,12 +8,10 @@
 #include <vector>
 
 #include "coilwright/geometry.hpp"
+#include "coilwright/map_request.hpp"
 #include "coilwright/model.hpp"
 
 namespace coilwright {
-
-enum class MapKind { line, plane, grid };
-[[nodiscard]] std::string_view to_string(MapKind k) noexcept;
 
 // A regular lattice: point (i, j, k) = origin + i/(n0-1) edge0 + j/(n1-1) edge1 + k/(n2-1) edge2;
 // an edge with one point contributes nothing. i runs fastest (the VTK order).
@@ -42,6 +40,8 @@ inline constexpr std::size_t kMaxMapPoints = 4'000'000;
                                        int n1);
 // An axis-aligned box from corner `from` to corner `to` with n[0] x n[1] x n[2] points.
 [[nodiscard]] MapLattice grid_lattice(const Vec3& from_m, const Vec3& to_m, std::array<int, 3> n);
+// The lattice a config's [[map]] asks for.
+[[nodiscard]] MapLattice lattice_of(const MapRequest& request);
 
 // The field of a design on a lattice.
 struct FieldMap {
@@ -67,5 +67,12 @@ struct FieldMap {
 // Writes the map as CSV or VTK by the file's extension (.csv, .vtk), atomically. Throws
 // InputError for another extension.
 void write_field_map(const std::filesystem::path& file, const FieldMap& map, const std::string& title);
+
+// <stem>-<name>.<format>: the file a [[map]] is written to.
+[[nodiscard]] std::string map_file_name(const std::string& stem, const MapRequest& request, MapFormat format);
+
+// Computes and writes every [[map]] of `model` into `dir` as <stem>-<name>.<format>, atomically;
+// returns the files written, in config order.
+std::vector<std::filesystem::path> write_config_maps(const std::filesystem::path& dir, const std::string& stem, const Model& model);
 
 }  // namespace coilwright

@@ -11,6 +11,7 @@
 #include "coilwright/error.hpp"
 #include "coilwright/geometry.hpp"
 #include "coilwright/hardware_options.hpp"
+#include "coilwright/map_request.hpp"
 #include "coilwright/tolerance_spec.hpp"
 
 namespace coilwright {
@@ -125,6 +126,7 @@ struct Model {
   SearchOptions search;
   HardwareOptions hardware;  // [hardware]: temperatures, cooling, allowances, AC drive
   Tolerances tolerances;     // [tolerance] and per-coil overrides: how builds scatter
+  std::vector<MapRequest> maps;  // [[map]]: field maps written with every design
   std::string source_file;                          // the file it was read from
   std::map<std::string, SourceLocation> locations;  // "coil.<name>", "coil.<name>.<key>", "circuit.<name>", "target.<key>", ...
 

@@ -119,6 +119,29 @@ void add_report_command(CLI::App& app, const GlobalOptions& global) {
   });
 }
 
+namespace {
+
+// The design's own [[map]] tables, written next to it (or into --out) as <stem>-<name>.<format>.
+void write_declared_maps(const MapArgs& args, const Model& model, const GlobalOptions& global) {
+  if (model.maps.empty())
+    throw InputError(fmt::format("map: give one of --line, --plane or --grid; '{}' declares no [[map]] tables", args.design));
+  const std::filesystem::path design(args.design);
+  const std::filesystem::path dir = args.out.empty() ? design.parent_path() : std::filesystem::path(args.out);
+  if (!args.out.empty() && std::filesystem::exists(dir) && !std::filesystem::is_directory(dir))
+    throw InputError(fmt::format("map: --out '{}' must be a folder when writing the design's [[map]] tables", args.out));
+  const auto files = write_config_maps(dir, design.stem().string(), model);
+  if (args.json) {
+    nlohmann::json j;
+    j["files"] = nlohmann::json::array();
+    for (const auto& f : files) j["files"].push_back(f.string());
+    fmt::print("{}\n", j.dump(2));
+  } else if (!global.quiet) {
+    for (const auto& f : files) fmt::print("{}\n", f.string());
+  }
+}
+
+}  // namespace
+
 void add_map_command(CLI::App& app, const GlobalOptions& global) {
   auto args = std::make_shared<MapArgs>();
   auto* cmd = app.add_subcommand("map", "The field of a design on a line, plane or 3-D grid, as CSV or VTK");
@@ -127,6 +150,9 @@ void add_map_command(CLI::App& app, const GlobalOptions& global) {
       "  coilwright map results/sensor-calibration-rig/design-01.toml --line 0,0,-120mm 0,0,120mm --n 241 --out axis.csv\n"
       "  coilwright map results/sensor-calibration-rig/design-01.toml --plane xz --size 300mm,300mm --n 121 --out xz.vtk\n"
       "  coilwright map results/sensor-calibration-rig/design-01.toml --grid --from -0.1,-0.1,-0.1 --to 0.1,0.1,0.1 --n 21 --out box.vtk\n"
+      "  coilwright map results/sensor-calibration-rig/design-01.toml   (the design's own [[map]] tables)\n"
+      "Without --line, --plane or --grid, every [[map]] of the design is written as <design>-<name>.csv/.vtk into\n"
+      "--out (a folder; default: the design's folder).\n"
       "Coordinates are in metres unless a unit is given. Columns: x,y,z [m], Bx,By,Bz,|B| [T], deviation = |B - B_goal| / reference.\n"
       "VTK files are legacy ASCII STRUCTURED_GRID with the vector B and the scalars B_magnitude and deviation.");
   cmd->add_option("design", args->design, "Design or config file (TOML)")->required()->check(CLI::ExistingFile);
@@ -139,11 +165,17 @@ void add_map_command(CLI::App& app, const GlobalOptions& global) {
   cmd->add_option("--size", args->size, "Plane size along its two axes: a,b");
   cmd->add_option("--from", args->from, "Grid corner x,y,z");
   cmd->add_option("--to", args->to, "Opposite grid corner x,y,z");
-  cmd->add_option("--n", args->n, "Points per direction: n (all directions) or n1,n2[,n3]")->required();
-  cmd->add_option("--out", args->out, "Output file: .csv or .vtk")->required();
+  cmd->add_option("--n", args->n, "Points per direction: n (all directions) or n1,n2[,n3]");
+  cmd->add_option("--out", args->out, "Output file (.csv or .vtk); for the design's [[map]] tables, a folder");
   cmd->add_flag("--json", args->json, "Print one JSON object describing the map");
   cmd->callback([args, &global] {
     const Model model = load_model(args->design);
+    if (args->line.empty() && args->plane.empty() && !args->grid) {
+      write_declared_maps(*args, model, global);
+      return;
+    }
+    if (args->n.empty()) throw InputError("map: --n is required with --line, --plane or --grid");
+    if (args->out.empty()) throw InputError("map: --out is required with --line, --plane or --grid");
     MapLattice lattice;
     if (!args->line.empty()) {
       lattice = line_lattice(vec(lengths(args->line[0], 3, "--line")), vec(lengths(args->line[1], 3, "--line")), counts(args->n, 1)[0]);
@@ -156,8 +188,6 @@ void add_map_command(CLI::App& app, const GlobalOptions& global) {
       if (args->from.empty() || args->to.empty()) throw InputError("--grid needs --from x,y,z and --to x,y,z");
       const auto n = counts(args->n, 3);
       lattice = grid_lattice(vec(lengths(args->from, 3, "--from")), vec(lengths(args->to, 3, "--to")), {n[0], n[1], n[2]});
-    } else {
-      throw InputError("map: give one of --line, --plane or --grid");
     }
     const FieldMap map = compute_field_map(model, lattice);
     write_field_map(args->out, map, model.project.name);
