@@ -1,5 +1,8 @@
 #include "coilwright/results.hpp"
 
+#include <cctype>
+#include <string_view>
+
 #include <fmt/format.h>
 
 #include "coilwright/atomic_file.hpp"
@@ -7,6 +10,8 @@
 #include "coilwright/design_writer.hpp"
 #include "coilwright/field_map.hpp"
 #include "coilwright/hardware.hpp"
+#include "coilwright/report.hpp"
+#include "coilwright/result_folder.hpp"
 
 namespace coilwright {
 
@@ -139,6 +144,28 @@ void write_results(const std::filesystem::path& dir, const Model& config, const 
   }
   write_file_atomic(dir / "designs.csv", designs_csv(config, summary));
   write_file_atomic(dir / "summary.json", summary_json(config, summary).dump(2) + "\n");
+}
+
+bool is_result_name(const std::string& name) {
+  if (name == "designs.csv" || name == "summary.json" || name == "report.html" || name == "figures") return true;
+  // design-NN followed by ".toml", "-schedule.txt" or "-<map name>.csv|.vtk"
+  if (name.size() < 9 || name.rfind("design-", 0) != 0) return false;
+  std::size_t i = 7;
+  while (i < name.size() && std::isdigit(static_cast<unsigned char>(name[i]))) ++i;
+  if (i < 9) return false;
+  const std::string rest = name.substr(i);
+  const auto ends_with = [&rest](std::string_view tail) { return rest.size() > tail.size() + 1 && rest.compare(rest.size() - tail.size(), tail.size(), tail) == 0; };
+  return rest == ".toml" || rest == "-schedule.txt" || (rest[0] == '-' && (ends_with(".csv") || ends_with(".vtk")));
+}
+
+void publish_results(const std::filesystem::path& dir, const Model& config, const SearchSummary& summary) {
+  publish_folder(
+      dir,
+      [&](const std::filesystem::path& staging) {
+        write_results(staging, config, summary);
+        (void)write_report(staging);  // figures/*.svg and report.html, from the files just written
+      },
+      is_result_name);
 }
 
 }  // namespace coilwright

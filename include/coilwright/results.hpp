@@ -32,6 +32,16 @@ namespace coilwright {
 // written; nothing else in the folder is touched.
 void write_results(const std::filesystem::path& dir, const Model& config, const SearchSummary& summary);
 
+// True for the names write_results() and the report put in a results folder: designs.csv,
+// summary.json, report.html, figures/, design-NN.toml, design-NN-schedule.txt and
+// design-NN-<map>.csv/.vtk. Everything else in the folder belongs to the user.
+[[nodiscard]] bool is_result_name(const std::string& name);
+
+// Writes the result files and the report (figures/, report.html) as one unit: `dir` then holds
+// either its previous complete contents or the new complete set, whatever happens meanwhile
+// (see result_folder.hpp); the user's own files in it are kept.
+void publish_results(const std::filesystem::path& dir, const Model& config, const SearchSummary& summary);
+
 // Quotes a CSV field when it holds a comma, quote or line break (RFC 4180).
 [[nodiscard]] std::string csv_field(std::string_view s);
 

@@ -11,7 +11,7 @@
 #include "progress.hpp"
 #include "coilwright/config.hpp"
 #include "coilwright/error.hpp"
-#include "coilwright/report.hpp"
+#include "coilwright/result_folder.hpp"
 #include "coilwright/results.hpp"
 #include "coilwright/search.hpp"
 
@@ -58,14 +58,18 @@ void add_design_command(CLI::App& app, const GlobalOptions& global) {
   cmd->footer(
       "Example:\n  coilwright design configs/sensor-calibration-rig.toml --out results/sensor-calibration-rig\n"
       "Writes designs.csv, design-01.toml, ..., summary.json, figures/*.svg and report.html into the output folder\n"
-      "(default: results/<project name>/). Ctrl-C stops the search and writes the best designs so far.");
+      "(default: results/<project name>/) as one unit: the folder holds either the previous complete results or the new\n"
+      "ones, never a mix, and files in it that coilwright does not write are kept. Ctrl-C or SIGTERM stops the search\n"
+      "and writes the best designs so far.");
   cmd->add_option("config", args->config, "Config file (TOML)")->required()->check(CLI::ExistingFile);
   cmd->add_option("--out", args->out, "Output folder (default: results/<project name>)");
   cmd->add_flag("--json", args->json, "Print the run's summary (as in summary.json) instead of the table");
   cmd->callback([args, &global] {
     const Model config = load_model(args->config);
-    const std::filesystem::path out = args->out.empty() ? std::filesystem::path("results") / config.project.name
+    // The project name is free text: only a safe form of it becomes a folder name.
+    const std::filesystem::path out = args->out.empty() ? std::filesystem::path("results") / safe_folder_name(config.project.name)
                                                            : std::filesystem::path(args->out);
+    probe_folder(out);  // an unwritable folder is reported now, not after a long search
     Progress progress("searching", global.quiet);
     SearchHooks hooks;
     hooks.stop = &g_stop;
@@ -76,8 +80,7 @@ void add_design_command(CLI::App& app, const GlobalOptions& global) {
     std::signal(SIGTERM, on_stop_signal);
     const SearchSummary summary = run_search(config, hooks);
     progress.finish();
-    write_results(out, config, summary);
-    write_report(out);  // figures/*.svg and report.html, from the files just written
+    publish_results(out, config, summary);  // designs, tables, maps, figures and report, as one unit
     std::signal(SIGINT, SIG_DFL);
     std::signal(SIGTERM, SIG_DFL);
     if (args->json)

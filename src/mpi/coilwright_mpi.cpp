@@ -17,6 +17,7 @@
 #include "coilwright/error.hpp"
 #include "coilwright/evaluator.hpp"
 #include "coilwright/parallel.hpp"
+#include "coilwright/result_folder.hpp"
 #include "coilwright/results.hpp"
 #include "coilwright/search.hpp"
 #include "coilwright/tolerance_report.hpp"
@@ -139,9 +140,9 @@ void design_job(const std::string& file, const std::string& out_dir, const World
   };
   const SearchSummary summary = run_search(config, hooks);
   if (w.rank != 0) return;
-  const std::filesystem::path out = out_dir.empty() ? std::filesystem::path("results") / config.project.name
+  const std::filesystem::path out = out_dir.empty() ? std::filesystem::path("results") / safe_folder_name(config.project.name)
                                                     : std::filesystem::path(out_dir);
-  write_results(out, config, summary);
+  publish_results(out, config, summary);
   fmt::print(stderr, "{} rank(s): {}\nwritten to {}\n", w.size, summary.one_line(), out.string());
 }
 
