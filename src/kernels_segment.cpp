@@ -31,7 +31,9 @@ void segment_points(const Vec3& a, const Vec3& b, double current_A, PointsView p
   double* __restrict oy = out.by;
   double* __restrict oz = out.bz;
   const std::size_t n = pts.n;
+#if !defined(__clang__)  // clang has no ivdep; the __restrict pointers above say the same
 #pragma GCC ivdep
+#endif
   for (std::size_t i = 0; i < n; ++i) {
     const double ix = ax - px[i], iy = ay - py[i], iz = az - pz[i];  // R_i = a - r
     const double fx = bx - px[i], fy = by - py[i], fz = bz - pz[i];  // R_f = b - r
