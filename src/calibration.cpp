@@ -25,13 +25,14 @@ CalibrationTable calibration_from_table(const UnitTable& t) {
   const SourceLocation header{t.file, t.header_line, 0};
   CalibrationTable out;
   out.source_file = t.file;
+  out.header_line = t.header_line;
   std::array<std::size_t, 3> bcol{t.find("Bx"), t.find("By"), t.find("Bz")};
   std::array<double, 3> bscale{};
   for (std::size_t a = 0; a < 3; ++a) {
     if (bcol[a] == UnitTable::npos)
-      throw InputError(header, "", fmt::format("the header has no column 'B{}'; a calibration table needs Bx, By, Bz and "
-                                               "one column per circuit current, e.g. \"x-pair[A],Bx[uT],By[uT],Bz[uT]\"",
-                                               "xyz"[a]));
+      throw InputError(SourceLocation{t.file, t.header_line, 1}, fmt::format("B{}", "xyz"[a]),
+                       fmt::format("the header has no column 'B{}'; accepted: Bx, By, Bz and one column per circuit current, "
+                                   "e.g. \"x-pair[A],Bx[uT],By[uT],Bz[uT]\"", "xyz"[a]));
     bscale[a] = column_scale(t, bcol[a], Dimension::flux_density);
   }
   const std::size_t sigma_col = t.find("sigma");
@@ -41,12 +42,13 @@ CalibrationTable calibration_from_table(const UnitTable& t) {
   for (std::size_t i = 0; i < t.columns.size(); ++i) {
     if (i == bcol[0] || i == bcol[1] || i == bcol[2] || i == sigma_col) continue;
     if (t.columns[i].unit.empty())
-      throw InputError(header, "", fmt::format("column '{}': a circuit current column is written <circuit>[<unit>], e.g. "
-                                               "\"{}[A]\"; the other accepted columns are Bx, By, Bz and sigma",
-                                               t.columns[i].header, t.columns[i].name));
+      throw InputError(SourceLocation{t.file, t.header_line, t.columns[i].column}, t.columns[i].header,
+                       fmt::format("a circuit current column needs its unit; accepted: <circuit>[<unit>], e.g. \"{}[A]\", "
+                                   "and the columns Bx, By, Bz and sigma", t.columns[i].name));
     icol.push_back(i);
     iscale.push_back(column_scale(t, i, Dimension::current));
     out.circuits.push_back(t.columns[i].name);
+    out.circuit_columns.push_back(t.columns[i].column);
   }
   if (icol.empty())
     throw InputError(header, "", "the table has no circuit current column (<circuit>[A])");
@@ -63,9 +65,8 @@ CalibrationTable calibration_from_table(const UnitTable& t) {
     if (sigma_col != UnitTable::npos) {
       const double sg = cell_value(t, row, sigma_col, sigma_scale);
       if (!(sg > 0.0))
-        throw InputError(SourceLocation{t.file, row.line, 0}, "",
-                         fmt::format("column '{}': found \"{}\"; an uncertainty must be positive",
-                                     t.columns[sigma_col].header, row.cells[sigma_col]));
+        throw InputError(SourceLocation{t.file, row.line, row.columns[sigma_col]}, t.columns[sigma_col].header,
+                         fmt::format("found \"{}\"; accepted: a positive uncertainty", row.cells[sigma_col]));
       out.sigma_T.push_back(sg);
     }
     out.lines.push_back(row.line);
@@ -93,13 +94,15 @@ CalibrationTable read_calibration_csv(const std::filesystem::path& file) {
 }
 
 void check_circuits(const CalibrationTable& table, const Model& model) {
-  for (const auto& name : table.circuits) {
+  for (std::size_t i = 0; i < table.circuits.size(); ++i) {
+    const std::string& name = table.circuits[i];
     const bool found = std::any_of(model.circuits.begin(), model.circuits.end(), [&](const Circuit& c) { return c.name == name; });
     if (!found) {
       std::vector<std::string> have;
       for (const auto& c : model.circuits) have.push_back(c.name);
-      throw InputError(SourceLocation{table.source_file, 0, 0}, "",
-                       fmt::format("the table names circuit '{}', which {} does not have; its circuits are {}", name,
+      const std::size_t column = i < table.circuit_columns.size() ? table.circuit_columns[i] : 0;
+      throw InputError(SourceLocation{table.source_file, column == 0 ? 0 : table.header_line, column}, name,
+                       fmt::format("the table names circuit '{}', which {} does not have; accepted: its circuits {}", name,
                                    model.source_file.empty() ? "the model" : model.source_file, detail::quoted_list(have)));
     }
   }

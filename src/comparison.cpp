@@ -3,7 +3,10 @@
 #include <algorithm>
 #include <cmath>
 
+#include <fmt/format.h>
+
 #include "coilwright/ambient_fit.hpp"
+#include "coilwright/error.hpp"
 #include "coilwright/field.hpp"
 #include "coilwright/survey.hpp"
 
@@ -12,7 +15,17 @@ namespace coilwright {
 MapComparison compare_with_map(const Model& design, const Survey& measured, const AmbientFit* background) {
   MapComparison c;
   c.points = measured.points;
-  check_clear_of_windings(design.coils, c.points);
+  for (std::size_t i = 0; i < c.points.size(); ++i) {
+    // One point at a time, so the message can name the map's line.
+    PointSet one;
+    one.push_back(c.points[i]);
+    try {
+      check_clear_of_windings(design.coils, one);
+    } catch (const DomainError& e) {
+      throw InputError(SourceLocation{measured.source_file, i < measured.lines.size() ? measured.lines[i] : 0, 1}, "",
+                       fmt::format("{}; accepted: points outside every winding", e.what()));
+    }
+  }
   c.model_T = field_of_model(design, c.points);
   c.measured_T = measured.field;
   if (background) {

@@ -1,5 +1,6 @@
 #include "coilwright/csv.hpp"
 
+#include <algorithm>
 #include <array>
 #include <charconv>
 #include <cmath>
@@ -10,15 +11,11 @@
 #include <fmt/format.h>
 
 #include "coilwright/error.hpp"
+#include "coilwright/text_lines.hpp"
 
 namespace coilwright {
 
 namespace detail {
-
-struct CsvField {
-  std::string text;
-  std::size_t column = 1;  // 1-based character column where the field starts
-};
 
 namespace {
 bool is_blank(char c) { return c == ' ' || c == '\t'; }
@@ -50,10 +47,13 @@ std::vector<CsvField> split_csv_fields(std::string_view line) {
         }
         f.text.push_back(line[i++]);
       }
-      if (!closed) throw InputError(fmt::format("column {}: the quoted field is not closed", f.column));
+      if (!closed)
+        throw InputError(SourceLocation{"", 0, f.column}, "",
+                         "the quoted field is not closed; accepted: a field in double quotes, with \"\" for a quote inside it");
       while (i < n && is_blank(line[i])) ++i;
       if (i < n && line[i] != ',')
-        throw InputError(fmt::format("column {}: text after the closing quote of a quoted field", i + 1));
+        throw InputError(SourceLocation{"", 0, i + 1}, "",
+                         "text after the closing quote of a quoted field; accepted: a comma or the line end");
     } else {
       const std::size_t start = i;
       while (i < n && line[i] != ',') ++i;
@@ -76,21 +76,18 @@ std::vector<std::string> split_csv_line(std::string_view line) {
   return out;
 }
 
-PointSet read_points_csv(const std::filesystem::path& file) {
-  const std::string name = file.string();
-  std::ifstream in(file);
-  if (!in) throw InputError(SourceLocation{name, 0, 0}, "", "cannot open the points file");
+namespace detail {
+namespace {
 
+PointSet read_points(LineReader& lines, std::vector<std::size_t>* line_numbers) {
+  const std::string& name = lines.file();
   constexpr std::array<std::string_view, 3> kAxes{"x", "y", "z"};
   std::optional<std::array<std::size_t, 3>> cols;  // field index of x, y, z
   std::size_t header_fields = 0;
   PointSet pts;
-  std::string line;
-  std::size_t line_no = 0;
-  while (std::getline(in, line)) {
-    ++line_no;
-    std::string_view view = line;
-    if (!view.empty() && view.back() == '\r') view.remove_suffix(1);
+  std::string_view view;
+  while (lines.next(view)) {
+    const std::size_t line_no = lines.line_number();
     std::size_t first = 0;
     while (first < view.size() && detail::is_blank(view[first])) ++first;
     if (first == view.size() || view[first] == '#') continue;
@@ -99,32 +96,41 @@ PointSet read_points_csv(const std::filesystem::path& file) {
     try {
       fields = detail::split_csv_fields(view);
     } catch (const InputError& e) {
-      throw InputError(SourceLocation{name, line_no, 0}, "", e.what());
+      throw InputError(SourceLocation{name, line_no, e.where().column}, "", e.what());
     }
     if (!cols) {
       std::array<std::size_t, 3> found{};
       for (std::size_t a = 0; a < 3; ++a) {
         bool seen = false;
         for (std::size_t k = 0; k < fields.size(); ++k) {
-          if (fields[k].text != kAxes[a]) continue;
+          const std::string& t = fields[k].text;
+          if (t.size() > 1 && t.rfind(kAxes[a], 0) == 0 && t.find('[') != std::string::npos &&
+              t.find_first_not_of(' ', 1) == t.find('['))
+            throw InputError(SourceLocation{name, line_no, fields[k].column}, t,
+                             fmt::format("a point list takes no units in its header; accepted: the column {} with values in metres",
+                                         kAxes[a]));
+          if (t != kAxes[a]) continue;
           if (seen)
             throw InputError(SourceLocation{name, line_no, fields[k].column}, std::string(kAxes[a]),
-                             "the header names this column twice");
+                             "the header names this column twice; accepted: each of x, y, z once");
           found[a] = k;
           seen = true;
         }
         if (!seen)
           throw InputError(SourceLocation{name, line_no, 1}, std::string(kAxes[a]),
-                           fmt::format("the header row must name the columns x, y and z (in metres); found: {}",
-                                       view));
+                           fmt::format("the header row must name the columns x, y and z (in metres); found: {}", view));
       }
       cols = found;
       header_fields = fields.size();
       continue;
     }
     if (fields.size() != header_fields)
+      throw InputError(SourceLocation{name, line_no, fields.size() > header_fields ? fields[header_fields].column : view.size() + 1}, "",
+                       fmt::format("found {} fields; accepted: {}, as many as the header has", fields.size(), header_fields));
+    if (pts.size() == kMaxPointRows)
       throw InputError(SourceLocation{name, line_no, 1}, "",
-                       fmt::format("found {} fields, the header has {}", fields.size(), header_fields));
+                       fmt::format("more than {} points; accepted: at most {} rows in one point list (split the file)",
+                                   kMaxPointRows, kMaxPointRows));
     Vec3 p;
     for (std::size_t a = 0; a < 3; ++a) {
       const auto& f = fields[(*cols)[a]];
@@ -135,14 +141,34 @@ PointSet read_points_csv(const std::filesystem::path& file) {
       const auto [end, ec] = std::from_chars(b, e, v);
       if (f.text.empty() || ec != std::errc{} || end != e || !std::isfinite(v))
         throw InputError(SourceLocation{name, line_no, f.column}, std::string(kAxes[a]),
-                         fmt::format("expected a finite number in metres, found \"{}\"", f.text));
+                         fmt::format("found \"{}\"; accepted: a finite number in metres", f.text));
       p[static_cast<Eigen::Index>(a)] = v;
     }
     pts.push_back(p);
+    if (line_numbers) line_numbers->push_back(line_no);
   }
-  if (!cols) throw InputError(SourceLocation{name, 0, 0}, "", "the file has no header row naming x, y, z");
-  if (pts.size() == 0) throw InputError(SourceLocation{name, 0, 0}, "", "the file has a header but no data rows");
+  if (!cols)
+    throw InputError(SourceLocation{name, 0, 0}, "",
+                     "the file has no header row naming x, y, z (it is empty or all comments); accepted: a header row x,y,z, "
+                     "then one point per row in metres");
+  if (pts.size() == 0)
+    throw InputError(SourceLocation{name, 0, 0}, "", "the file has a header but no data rows; accepted: one point per row after the header");
   return pts;
+}
+
+}  // namespace
+}  // namespace detail
+
+PointSet parse_points_csv(std::string_view text, std::string file) {
+  LineReader lines(text, std::move(file));
+  return detail::read_points(lines, nullptr);
+}
+
+PointSet read_points_csv(const std::filesystem::path& file, std::vector<std::size_t>* line_numbers) {
+  std::ifstream in(file, std::ios::binary);
+  if (!in) throw InputError(SourceLocation{file.string(), 0, 0}, "", "cannot open the points file");
+  LineReader lines(in, file.string());
+  return detail::read_points(lines, line_numbers);
 }
 
 }  // namespace coilwright

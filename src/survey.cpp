@@ -22,16 +22,17 @@ Survey survey_from_table(const UnitTable& t) {
     bool known = same_column_name(c.name, kSigmaColumn);
     for (auto n : kSurveyColumns) known = known || same_column_name(c.name, n);
     if (!known)
-      throw InputError(header, "", fmt::format("column '{}' is not a survey column; accepted: x, y, z, Bx, By, Bz "
-                                               "and optionally sigma, each with an optional [unit]", c.header));
+      throw InputError(SourceLocation{t.file, t.header_line, c.column}, c.header,
+                       "not a survey column; accepted: x, y, z, Bx, By, Bz and optionally sigma, each with an optional [unit]");
   }
   std::array<std::size_t, 6> col{};
   std::array<double, 6> scale{};
   for (std::size_t k = 0; k < 6; ++k) {
     col[k] = t.find(kSurveyColumns[k]);
     if (col[k] == UnitTable::npos)
-      throw InputError(header, "", fmt::format("the header has no column '{}'; a survey needs x, y, z, Bx, By, Bz "
-                                               "(e.g. \"x[mm],y[mm],z[mm],Bx[uT],By[uT],Bz[uT]\")", kSurveyColumns[k]));
+      throw InputError(SourceLocation{t.file, t.header_line, 1}, std::string(kSurveyColumns[k]),
+                       fmt::format("the header has no column '{}'; accepted: a header naming x, y, z, Bx, By, Bz "
+                                   "(e.g. \"x[mm],y[mm],z[mm],Bx[uT],By[uT],Bz[uT]\")", kSurveyColumns[k]));
     scale[k] = column_scale(t, col[k], k < 3 ? Dimension::length : Dimension::flux_density);
   }
   const std::size_t sigma_col = t.find(kSigmaColumn);
@@ -50,9 +51,8 @@ Survey survey_from_table(const UnitTable& t) {
     if (sigma_col != UnitTable::npos) {
       const double sg = cell_value(t, row, sigma_col, sigma_scale);
       if (!(sg > 0.0))
-        throw InputError(SourceLocation{t.file, row.line, 0}, "",
-                         fmt::format("column '{}': found \"{}\"; an uncertainty must be positive",
-                                     t.columns[sigma_col].header, row.cells[sigma_col]));
+        throw InputError(SourceLocation{t.file, row.line, row.columns[sigma_col]}, t.columns[sigma_col].header,
+                         fmt::format("found \"{}\"; accepted: a positive uncertainty", row.cells[sigma_col]));
       s.sigma_T.push_back(sg);
     }
     s.lines.push_back(row.line);

@@ -67,15 +67,15 @@ TEST_CASE("survey: a malformed line names file, line, column, the text and what 
   CHECK_THAT(count, Catch::Contains("5 value(s)"));
 
   CHECK_THAT(error_of(head + "0,0,nan,1,2,3\n"), Catch::Contains("bench.csv:4"));
-  CHECK_THAT(error_of(head + "0,0,,1,2,3\n"), Catch::Contains("column 'z'"));
+  CHECK_THAT(error_of(head + "0,0,,1,2,3\n"), Catch::Contains("key 'z'"));
 }
 
 TEST_CASE("survey: bad headers are refused with what is accepted", "[survey]") {
   CHECK_THAT(error_of("x,y,z,Bx[uT],By[uT],Bz[furlong]\n0,0,0,1,2,3\n"), Catch::Contains("accepted: T"));
   CHECK_THAT(error_of("x[uT],y,z,Bx,By,Bz\n0,0,0,1,2,3\n"), Catch::Contains("not a unit of length"));
   CHECK_THAT(error_of("x,y,z,Bx,By\n0,0,0,1,2\n"), Catch::Contains("no column 'Bz'"));
-  CHECK_THAT(error_of("x,y,z,Bx,By,Bz,sgima\n0,0,0,1,2,3,4\n"), Catch::Contains("'sgima' is not a survey column"));
-  CHECK_THAT(error_of("x,y,z,Bx,By,Bz,sigma\n0,0,0,1,2,3,0\n"), Catch::Contains("must be positive"));
+  CHECK_THAT(error_of("x,y,z,Bx,By,Bz,sgima\n0,0,0,1,2,3,4\n"), Catch::Contains("key 'sgima': not a survey column"));
+  CHECK_THAT(error_of("x,y,z,Bx,By,Bz,sigma\n0,0,0,1,2,3,0\n"), Catch::Contains("accepted: a positive uncertainty"));
   CHECK_THAT(error_of("x,y,z,Bx[uT,By,Bz\n0,0,0,1,2,3\n"), Catch::Contains("name[unit]"));
   CHECK_THAT(error_of("# nothing\n\n"), Catch::Contains("no header"));
   CHECK_THAT(error_of("x,y,z,Bx,By,Bz\n"), Catch::Contains("no readings"));

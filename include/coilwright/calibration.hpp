@@ -31,6 +31,8 @@ struct CalibrationTable {
   Eigen::MatrixXd field_T;            // readings x 3
   std::vector<double> sigma_T;        // per reading; empty without a sigma column
   std::vector<std::size_t> lines;     // file line of each reading
+  std::size_t header_line = 0;         // for messages about a circuit column
+  std::vector<std::size_t> circuit_columns;  // character column of each circuit's header cell
   [[nodiscard]] std::size_t size() const noexcept { return lines.size(); }
 };
 

@@ -47,7 +47,12 @@ void add_calibrate_command(CLI::App& app, const GlobalOptions& global) {
                                                     : (model.target ? model.target->centre_m : Vec3::Zero());
     PointSet at;
     at.push_back(sensor);
-    check_clear_of_windings(model.coils, at);
+    try {
+      check_clear_of_windings(model.coils, at);
+    } catch (const DomainError& e) {
+      throw InputError(fmt::format("{}: the sensor {}; accepted: a position outside every winding",
+                                   args->sensor_mm.size() == 3 ? "--sensor" : "the target centre", e.what()));
+    }
     const SensorNulling null = null_at_sensor(cal, model, cal.offset_T);
     const std::size_t k = cal.circuits.size();
     std::vector<Vec3> model_k(k);

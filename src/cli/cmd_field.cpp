@@ -1,5 +1,6 @@
 // coilwright field: the field of a design at given points, or a summary at the origin.
 #include <string>
+#include <vector>
 
 #include <fmt/format.h>
 
@@ -40,8 +41,24 @@ void print_summary(const Model& model) {
 }
 
 void write_points(const Model& model, const FieldArgs& args) {
-  const PointSet pts = read_points_csv(args.points);
-  check_clear_of_windings(model.coils, pts);
+  std::vector<std::size_t> lines;
+  const PointSet pts = read_points_csv(args.points, &lines);
+  try {
+    check_clear_of_windings(model.coils, pts);
+  } catch (const DomainError&) {
+    // Name the line of the first such point: the check itself knows points, not files.
+    for (std::size_t i = 0; i < pts.size(); ++i) {
+      PointSet one;
+      one.push_back(pts[i]);
+      try {
+        check_clear_of_windings(model.coils, one);
+      } catch (const DomainError& e) {
+        throw InputError(SourceLocation{args.points, lines[i], 1}, "",
+                         fmt::format("{}; accepted: points outside every winding", e.what()));
+      }
+    }
+    throw;
+  }
   const FieldSet b = field_of_model(model, pts);
   std::string csv = "x,y,z,Bx,By,Bz\n";
   csv.reserve(csv.size() + pts.size() * 6 * 25);
