@@ -246,7 +246,9 @@ class Reader {
     if (const auto* p = root.get("project")) read_project(table(*p, "project"));
     if (const auto* c = root.get("circuit")) read_circuits(array_of_tables(*c, "circuit"));
     if (const auto* c = root.get("coil")) read_coils(array_of_tables(*c, "coil"));
-    if (m_.coils.empty()) fail(SourceLocation{file_, 0, 0}, "", "the config declares no [[coil]]");
+    if (m_.coils.empty())
+      fail(SourceLocation{file_, 0, 0}, "",
+           "the config declares no [[coil]]; accepted: a config with at least one [[coil]] table (examples in configs/shapes/)");
     resolve_ties();
     for (std::size_t i = 0; i < m_.coils.size(); ++i) check_coil(i);
     if (const auto* t = root.get("target")) read_target(table(*t, "target"));
@@ -1436,11 +1438,12 @@ Model parse_model(std::string_view toml_text, const std::string& source_name) {
   } catch (const toml::parse_error& e) {
     const auto& b = e.source().begin;
     throw InputError(SourceLocation{source_name, b.line, b.column}, "",
-                     fmt::format("TOML syntax error: {}", e.description()));
+                     fmt::format("TOML syntax error: {}; accepted: a TOML 1.0 text file (examples in configs/)", e.description()));
   }
   Model model;
   detail::Reader(source_name, model).read(root);
   check_no_intersections(model);
+  check_target_clear(model);
   return model;
 }
 

@@ -216,7 +216,8 @@ double parse_quantity(std::string_view text, Dimension expected) {
   double value = 0.0;
   const auto [end, ec] = std::from_chars(num.data(), num.data() + num.size(), value);
   if (ec == std::errc::result_out_of_range)
-    throw UnitParseError(fmt::format("the number in \"{}\" is out of the range of a double (non-finite)", s));
+    throw UnitParseError(fmt::format("the number in \"{}\" is out of the range of a double (non-finite); accepted: "
+                                     "numbers of magnitude below about 1.8e308", s));
   if (ec != std::errc{} || (plus && (num.empty() || num.front() == '-' || num.front() == '+')))
     throw UnitParseError(fmt::format("\"{}\" does not start with a number; {}", s, expect_msg()));
   if (!std::isfinite(value))
@@ -230,7 +231,8 @@ double parse_quantity(std::string_view text, Dimension expected) {
   if (const UnitDef* u = find_unit(unit, expected)) {
     const double si = scale(value, u->exp10) * u->factor + u->offset;
     if (!std::isfinite(si))
-      throw UnitParseError(fmt::format("\"{}\" is not finite in {}", s, want.si));
+      throw UnitParseError(fmt::format("\"{}\" is not finite in {}; accepted: a {} whose value in {} is below about 1.8e308", s,
+                                       want.si, want.name, want.si));
     return si;
   }
   if (const UnitDef* other = find_unit(unit, std::nullopt))

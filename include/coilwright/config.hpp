@@ -21,6 +21,10 @@ namespace coilwright {
 // intersect (coaxial circular windings exactly, others by a sampled distance check).
 void check_no_intersections(const Model& model);
 
+// Throws InputError pointing at the target's size key (or its points file) when a winding's
+// conductor passes through the target region: the field inside a conductor is not modelled.
+void check_target_clear(const Model& model);
+
 // One string<->enum table per config enum, used for parsing and for printing back.
 [[nodiscard]] std::string_view to_string(RegionKind r) noexcept;
 [[nodiscard]] std::optional<RegionKind> region_from_string(std::string_view s) noexcept;
