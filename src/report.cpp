@@ -1,11 +1,13 @@
 // The HTML report of a design run, rebuilt from the written result files.
 #include "coilwright/report.hpp"
 
+#include <algorithm>
 #include <chrono>
 #include <cmath>
 #include <cstdlib>
 #include <ctime>
 #include <fstream>
+#include <iterator>
 #include <sstream>
 
 #include <fmt/format.h>
@@ -316,23 +318,41 @@ std::string report_html(const nlohmann::json& summary, const std::vector<Model>&
 
 ReportSummary write_report(const std::filesystem::path& dir, const FigureOptions& options) {
   const std::filesystem::path summary_file = dir / "summary.json";
-  std::ifstream in(summary_file);
-  if (!in) throw InputError(fmt::format("report: cannot read {} — is this a results folder written by 'coilwright design'?", summary_file.string()));
+  std::ifstream in(summary_file, std::ios::binary);
+  if (!in)
+    throw InputError(SourceLocation{summary_file.string()}, "",
+                     "cannot read the file; accepted: a results folder written by 'coilwright design' (it holds summary.json)");
+  const std::string text{std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
   nlohmann::json summary;
   try {
-    summary = nlohmann::json::parse(in);
-  } catch (const nlohmann::json::exception& e) {
-    throw InputError(SourceLocation{summary_file.string(), 0, 0}, "summary", fmt::format("not valid JSON: {}", e.what()));
+    summary = nlohmann::json::parse(text);
+  } catch (const nlohmann::json::parse_error& e) {
+    // nlohmann's byte is 1-based and points at the character that broke the parse.
+    const std::size_t at = std::min<std::size_t>(e.byte > 0 ? e.byte - 1 : 0, text.size());
+    const std::size_t line = 1 + static_cast<std::size_t>(std::count(text.begin(), text.begin() + static_cast<std::ptrdiff_t>(at), '\n'));
+    const std::size_t line_start = text.rfind('\n', at == 0 ? 0 : at - 1);
+    const std::size_t column = at == 0 || line_start == std::string::npos ? at + 1 : at - line_start;
+    std::string why = e.what();
+    if (const auto colon = why.find(": "); colon != std::string::npos) why = why.substr(colon + 2);  // drop nlohmann's own location
+    throw InputError(SourceLocation{summary_file.string(), line, column}, "",
+                     fmt::format("not valid JSON: {}; accepted: the summary.json that 'coilwright design' writes", why));
   }
   if (!summary.is_object() || !summary.contains("designs") || !summary["designs"].is_array())
-    throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs", "summary.json has no 'designs' list");
+    throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs",
+                     "summary.json has no 'designs' list; accepted: the summary.json that 'coilwright design' writes");
   std::vector<Model> designs;
   for (const nlohmann::json& d : summary["designs"]) {
-    if (!d.contains("file") || !d["file"].is_string())
-      throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs.file", "a design entry names no file");
+    if (!d.is_object() || !d.contains("file") || !d["file"].is_string())
+      throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs.file",
+                       "a design entry names no file; accepted: {\"file\": \"design-01.toml\", ...}");
     const std::string name = d["file"].get<std::string>();
     if (name.find('/') != std::string::npos || name.find("..") != std::string::npos)
-      throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs.file", fmt::format("'{}' is not a plain file name", name));
+      throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs.file",
+                       fmt::format("'{}' is not a plain file name; accepted: a file in the results folder, e.g. design-01.toml", name));
+    if (!std::filesystem::exists(dir / name))
+      throw InputError(SourceLocation{summary_file.string(), 0, 0}, "designs.file",
+                       fmt::format("'{}' is listed but not in the folder; accepted: the results folder as 'coilwright design' wrote it",
+                                   name));
     designs.push_back(load_model(dir / name));
   }
   ReportSummary result;

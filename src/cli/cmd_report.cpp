@@ -66,7 +66,8 @@ std::vector<double> lengths(const std::string& text, std::size_t expected, const
     start = comma + 1;
   }
   if (out.size() != expected)
-    throw InputError(fmt::format("{} '{}': expected {} comma-separated values, found {}", option, text, expected, out.size()));
+    throw InputError(fmt::format("{} '{}': found {} comma-separated value(s); accepted: {} lengths in metres or with a unit, "
+                                 "e.g. {}", option, text, out.size(), expected, expected == 3 ? "0,0,120mm" : "300mm,300mm"));
   return out;
 }
 
@@ -83,13 +84,16 @@ std::vector<int> counts(const std::string& text, std::size_t expected) {
     } catch (const std::exception&) {
       used = 0;
     }
-    if (used == 0 || used != part.size()) throw InputError(fmt::format("--n '{}': '{}' is not a whole number", text, part));
+    if (used == 0 || used != part.size())
+      throw InputError(fmt::format("--n '{}': '{}' is not a whole number; accepted: counts of at least 1, e.g. 21 or 21,41", text, part));
+    if (v < 1) throw InputError(fmt::format("--n '{}': {} is below 1; accepted: counts of at least 1, e.g. 21 or 21,41", text, v));
     out.push_back(v);
     if (comma == std::string::npos) break;
     start = comma + 1;
   }
   if (out.size() == 1 && expected > 1) out.resize(expected, out[0]);
-  if (out.size() != expected) throw InputError(fmt::format("--n '{}': expected {} counts, found {}", text, expected, out.size()));
+  if (out.size() != expected)
+    throw InputError(fmt::format("--n '{}': found {} counts; accepted: one count, or {} comma-separated counts", text, out.size(), expected));
   return out;
 }
 

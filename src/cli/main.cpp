@@ -2,6 +2,8 @@
 // exit codes documented in --help.
 #include <cstdio>
 #include <exception>
+#include <string>
+#include <string_view>
 
 #include <fmt/format.h>
 
@@ -20,7 +22,7 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   cli::GlobalOptions global;
   app.add_flag("-q,--quiet", global.quiet, "No progress or notes on stderr");
-  app.add_option("--threads", global.threads, "Worker threads (default: all cores)")->check(CLI::NonNegativeNumber);
+  app.add_option("--threads", global.threads, "Worker threads (default: all cores)")->check(CLI::Range(0, 4096));
   app.parse_complete_callback([&global] { set_threads(global.threads); });
 
   cli::add_field_command(app, global);
@@ -32,6 +34,27 @@ int main(int argc, char** argv) {
   cli::add_tolerance_command(app, global);
   cli::add_report_command(app, global);
   cli::add_map_command(app, global);
+
+  // CLI11 reports an unknown command as a missing one; name it and list the commands instead.
+  for (int i = 1; i < argc; ++i) {
+    const std::string_view a = argv[i];
+    if (a == "--threads") {
+      ++i;
+      continue;
+    }
+    if (a.empty() || a.front() == '-') continue;
+    std::string names;
+    bool known = false;
+    for (const CLI::App* sub : app.get_subcommands([](const CLI::App*) { return true; })) {
+      known = known || sub->get_name() == a;
+      names += (names.empty() ? "" : ", ") + sub->get_name();
+    }
+    if (!known) {
+      fmt::print(stderr, "error: unknown command '{}'; accepted: {}\n", a, names);
+      return exit_code::bad_input;
+    }
+    break;
+  }
 
   try {
     app.parse(argc, argv);
