@@ -335,11 +335,15 @@ class Reader {
                        shown(n), dimension_name(d), d == Dimension::length ? "250 mm" : fmt::format("1 {}", si_unit(d)),
                        accepted_units(d)));
     const std::string text = string(n, key);
+    double v = 0.0;
     try {
-      return parse_quantity(text, d);
+      v = parse_quantity(text, d);
     } catch (const UnitParseError& e) {
       fail(at(n), key, e.what());
     }
+    if (d == Dimension::length && std::abs(v) > kMaxLengthM)
+      fail(at(n), key, fmt::format("\"{}\" is {:g} m; accepted: lengths up to {:g} m", text, v, kMaxLengthM));
+    return v;
   }
   Vec3 vec3_quantity(const toml::node& n, const std::string& key, Dimension d) const {
     const auto& a = array(n, key, 3, fmt::format("{} strings", dimension_name(d)));

@@ -12,6 +12,7 @@
 
 #include "coilwright/error.hpp"
 #include "coilwright/text_lines.hpp"
+#include "coilwright/units.hpp"
 
 namespace coilwright {
 
@@ -139,9 +140,9 @@ PointSet read_points(LineReader& lines, std::vector<std::size_t>* line_numbers) 
       const char* e = b + f.text.size();
       if (b != e && *b == '+' && !(e - b > 1 && (b[1] == '-' || b[1] == '+'))) ++b;
       const auto [end, ec] = std::from_chars(b, e, v);
-      if (f.text.empty() || ec != std::errc{} || end != e || !std::isfinite(v))
+      if (f.text.empty() || ec != std::errc{} || end != e || !std::isfinite(v) || std::abs(v) > kMaxLengthM)
         throw InputError(SourceLocation{name, line_no, f.column}, std::string(kAxes[a]),
-                         fmt::format("found \"{}\"; accepted: a finite number in metres", f.text));
+                         fmt::format("found \"{}\"; accepted: a number in metres up to {:g} in size", f.text, kMaxLengthM));
       p[static_cast<Eigen::Index>(a)] = v;
     }
     pts.push_back(p);

@@ -1,6 +1,7 @@
 #include "coilwright/survey.hpp"
 
 #include <array>
+#include <cmath>
 #include <utility>
 
 #include <fmt/format.h>
@@ -43,7 +44,12 @@ Survey survey_from_table(const UnitTable& t) {
   s.points.reserve(t.rows.size());
   for (const auto& row : t.rows) {
     std::array<double, 6> v{};
-    for (std::size_t k = 0; k < 6; ++k) v[k] = cell_value(t, row, col[k], scale[k]);
+    for (std::size_t k = 0; k < 6; ++k) {
+      v[k] = cell_value(t, row, col[k], scale[k]);
+      if (k < 3 && std::abs(v[k]) > kMaxLengthM)
+        throw InputError(SourceLocation{t.file, row.line, row.columns[col[k]]}, t.columns[col[k]].header,
+                         fmt::format("found \"{}\", {:g} m; accepted: positions up to {:g} m", row.cells[col[k]], v[k], kMaxLengthM));
+    }
     s.points.push_back({v[0], v[1], v[2]});
     s.field.bx.push_back(v[3]);
     s.field.by.push_back(v[4]);

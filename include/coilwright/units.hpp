@@ -6,6 +6,11 @@
 
 namespace coilwright {
 
+// The largest length any input may give [m]: 1000 km is far beyond any coil system, and squares
+// and products of lengths in the field kernels stay finite far beyond it (1e305 m, a finite
+// double, made every field NaN).
+inline constexpr double kMaxLengthM = 1e6;
+
 // The kinds of quantity a config may ask for. A unit of the wrong kind is an error.
 enum class Dimension {
   length,        // m

@@ -61,6 +61,8 @@ std::vector<double> lengths(const std::string& text, std::size_t expected, const
         throw InputError(fmt::format("{} '{}': {}", option, text, why.what()));
       }
     }
+    if (std::abs(v) > kMaxLengthM)
+      throw InputError(fmt::format("{} '{}': {} is {:g} m; accepted: lengths up to {:g} m", option, text, part, v, kMaxLengthM));
     out.push_back(v);
     if (comma == std::string::npos) break;
     start = comma + 1;
