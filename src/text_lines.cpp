@@ -16,16 +16,22 @@ constexpr std::size_t kBlockBytes = 1 << 16;
 std::size_t utf8_length(std::string_view s, std::size_t i) {
   const auto b = [&](std::size_t k) { return static_cast<unsigned char>(s[k]); };
   const unsigned char c = b(i);
+  // The sequence length and the allowed range of its second byte, by lead byte (RFC 3629, 4).
   std::size_t n = 0;
-  unsigned char lo = 0x80, hi = 0xBF;  // the allowed range of the second byte
-  if (c >= 0xC2 && c <= 0xDF) n = 2;
-  else if (c == 0xE0) n = 3, lo = 0xA0;
-  else if (c == 0xED) n = 3, hi = 0x9F;
-  else if (c >= 0xE1 && c <= 0xEF) n = 3;
-  else if (c == 0xF0) n = 4, lo = 0x90;
-  else if (c == 0xF4) n = 4, hi = 0x8F;
-  else if (c >= 0xF1 && c <= 0xF3) n = 4;
-  else return 0;
+  unsigned char lo = 0x80, hi = 0xBF;
+  if (c >= 0xC2 && c <= 0xDF) {
+    n = 2;
+  } else if (c >= 0xE0 && c <= 0xEF) {
+    n = 3;
+    if (c == 0xE0) lo = 0xA0;  // no overlong forms
+    if (c == 0xED) hi = 0x9F;  // no surrogates
+  } else if (c >= 0xF0 && c <= 0xF4) {
+    n = 4;
+    if (c == 0xF0) lo = 0x90;  // no overlong forms
+    if (c == 0xF4) hi = 0x8F;  // nothing above U+10FFFF
+  } else {
+    return 0;
+  }
   if (i + n > s.size() || b(i + 1) < lo || b(i + 1) > hi) return 0;
   for (std::size_t k = 2; k < n; ++k)
     if (b(i + k) < 0x80 || b(i + k) > 0xBF) return 0;
