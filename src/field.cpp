@@ -155,55 +155,143 @@ void add_axisymmetric(const Frame& f, const Vec3& centre, double scale, PointsVi
   }
 }
 
+// The block's points grouped by their quadrature orders: points that share (order_a, order_b)
+// are evaluated together, so each kernel call gets all their nodes at once instead of a handful
+// (the loop kernel works on 16 points at a time; a pack's 6 axial nodes alone filled it by a third).
+struct OrderGroups {
+  std::size_t member[kBlock];  // point indices, grouped
+  std::size_t begin[kBlock + 1];
+  int order_a[kBlock], order_b[kBlock];  // orders of each group
+  std::size_t count = 0;
+
+  // Groups points 0..n-1 whose orders are a[i], b[i]; groups keep the order of first appearance
+  // and points within a group keep their block order, so the result depends only on the block.
+  void build(std::size_t n, const int* a, const int* b) {
+    bool taken[kBlock] = {};
+    std::size_t m = 0;
+    count = 0;
+    for (std::size_t i0 = 0; i0 < n; ++i0) {
+      if (taken[i0]) continue;
+      begin[count] = m;
+      order_a[count] = a[i0];
+      order_b[count] = b[i0];
+      for (std::size_t i = i0; i < n; ++i)
+        if (!taken[i] && a[i] == a[i0] && b[i] == b[i0]) {
+          taken[i] = true;
+          member[m++] = i;
+        }
+      ++count;
+    }
+    begin[count] = m;
+  }
+};
+
+// Scratch for one group's nodes (per thread: blocks are evaluated in parallel).
+struct NodeScratch {
+  std::vector<double> rho, z, br, bz;
+  void resize(std::size_t n) {
+    if (rho.size() < n) {
+      rho.resize(n);
+      z.resize(n);
+      br.resize(n);
+      bz.resize(n);
+    }
+  }
+};
+NodeScratch& node_scratch() {
+  thread_local NodeScratch s;
+  return s;
+}
+
 // Uniform current density over [r0, r1] x [-hw, hw] (per unit total current): for each point,
 // Gauss-Legendre over radius and axial position with orders from the point's distance to the
-// cross-section; the axial nodes of one radius form one vectorised call of the loop kernel.
+// cross-section. For each radial node, the axial nodes of every point of an order group form
+// one vectorised call of the loop kernel.
 void pack_local(double r0, double r1, double hw, LocalBlock& blk) {
   const double hr = 0.5 * (r1 - r0), rc = 0.5 * (r0 + r1);
-  double rho_rep[128], zq[128], br[128], bz[128];
+  int nr[kBlock], nz[kBlock];
   for (std::size_t i = 0; i < blk.n; ++i) {
     const double delta = distance_to_box(blk.rho[i], blk.z[i], r0, r1, -hw, hw);
-    const GaussRule& gr = gauss_rule(gauss_order(delta, hr));
-    const GaussRule& gz = gauss_rule(gauss_order(delta, hw));
-    const std::size_t nz = static_cast<std::size_t>(gz.n);
-    for (std::size_t k = 0; k < nz; ++k) {
-      rho_rep[k] = blk.rho[i];
-      zq[k] = blk.z[i] - hw * gz.x[k];
+    nr[i] = gauss_order(delta, hr);
+    nz[i] = gauss_order(delta, hw);
+  }
+  OrderGroups groups;
+  groups.build(blk.n, nr, nz);
+  NodeScratch& s = node_scratch();
+  for (std::size_t g = 0; g < groups.count; ++g) {
+    const GaussRule& gr = gauss_rule(groups.order_a[g]);
+    const GaussRule& gz = gauss_rule(groups.order_b[g]);
+    const std::size_t q = static_cast<std::size_t>(gz.n);
+    const std::size_t* members = groups.member + groups.begin[g];
+    const std::size_t m = groups.begin[g + 1] - groups.begin[g];
+    s.resize(m * q);
+    for (std::size_t p = 0; p < m; ++p) {
+      const std::size_t i = members[p];
+      for (std::size_t k = 0; k < q; ++k) {
+        s.rho[p * q + k] = blk.rho[i];
+        s.z[p * q + k] = blk.z[i] - hw * gz.x[k];
+      }
+      blk.tr[i] = 0.0;
+      blk.tz[i] = 0.0;
     }
-    double srr = 0.0, sz = 0.0;
     for (int j = 0; j < gr.n; ++j) {
       const double a = rc + hr * gr.x[static_cast<std::size_t>(j)];
-      kernels::loop_field(a, nz, rho_rep, zq, br, bz);
-      double tr = 0.0, tz = 0.0;
-      for (std::size_t k = 0; k < nz; ++k) {
-        tr += gz.w[k] * br[k];
-        tz += gz.w[k] * bz[k];
+      const double wj = gr.w[static_cast<std::size_t>(j)];
+      kernels::loop_field(a, m * q, s.rho.data(), s.z.data(), s.br.data(), s.bz.data());
+      for (std::size_t p = 0; p < m; ++p) {
+        double tr = 0.0, tz = 0.0;
+        for (std::size_t k = 0; k < q; ++k) {
+          tr += gz.w[k] * s.br[p * q + k];
+          tz += gz.w[k] * s.bz[p * q + k];
+        }
+        blk.tr[members[p]] += wj * tr;
+        blk.tz[members[p]] += wj * tz;
       }
-      srr += gr.w[static_cast<std::size_t>(j)] * tr;
-      sz += gr.w[static_cast<std::size_t>(j)] * tz;
     }
-    blk.brr[i] = 0.25 * srr;  // weights on [-1,1]^2 sum to 4
-    blk.bz[i] = 0.25 * sz;
+    for (std::size_t p = 0; p < m; ++p) {
+      blk.brr[members[p]] = 0.25 * blk.tr[members[p]];  // weights on [-1,1]^2 sum to 4
+      blk.bz[members[p]] = 0.25 * blk.tz[members[p]];
+    }
   }
 }
 
 // Multi-layer solenoid: current sheets between r0 and r1, Gauss-Legendre over radius
-// (per unit total current, turns_per_m = turns / length of the whole winding).
+// (per unit total current, turns_per_m = turns / length of the whole winding); the points of an
+// order group share each radial node's kernel call.
 void multilayer_local(double r0, double r1, double length, double turns_per_m, LocalBlock& blk) {
   const double hr = 0.5 * (r1 - r0), rc = 0.5 * (r0 + r1);
+  int nr[kBlock], one[kBlock];
   for (std::size_t i = 0; i < blk.n; ++i) {
-    const double delta = distance_to_box(blk.rho[i], blk.z[i], r0, r1, -0.5 * length, 0.5 * length);
-    const GaussRule& gr = gauss_rule(gauss_order(delta, hr));
-    double srr = 0.0, sz = 0.0;
+    nr[i] = gauss_order(distance_to_box(blk.rho[i], blk.z[i], r0, r1, -0.5 * length, 0.5 * length), hr);
+    one[i] = 1;
+  }
+  OrderGroups groups;
+  groups.build(blk.n, nr, one);
+  NodeScratch& s = node_scratch();
+  for (std::size_t g = 0; g < groups.count; ++g) {
+    const GaussRule& gr = gauss_rule(groups.order_a[g]);
+    const std::size_t* members = groups.member + groups.begin[g];
+    const std::size_t m = groups.begin[g + 1] - groups.begin[g];
+    s.resize(m);
+    for (std::size_t p = 0; p < m; ++p) {
+      s.rho[p] = blk.rho[members[p]];
+      s.z[p] = blk.z[members[p]];
+      blk.tr[members[p]] = 0.0;
+      blk.tz[members[p]] = 0.0;
+    }
     for (int j = 0; j < gr.n; ++j) {
       const double a = rc + hr * gr.x[static_cast<std::size_t>(j)];
-      double br, bz;
-      kernels::solenoid_sheet_field(a, length, turns_per_m, 1, &blk.rho[i], &blk.z[i], &br, &bz);
-      srr += gr.w[static_cast<std::size_t>(j)] * br;
-      sz += gr.w[static_cast<std::size_t>(j)] * bz;
+      const double wj = gr.w[static_cast<std::size_t>(j)];
+      kernels::solenoid_sheet_field(a, length, turns_per_m, m, s.rho.data(), s.z.data(), s.br.data(), s.bz.data());
+      for (std::size_t p = 0; p < m; ++p) {
+        blk.tr[members[p]] += wj * s.br[p];
+        blk.tz[members[p]] += wj * s.bz[p];
+      }
     }
-    blk.brr[i] = 0.5 * srr;
-    blk.bz[i] = 0.5 * sz;
+    for (std::size_t p = 0; p < m; ++p) {
+      blk.brr[members[p]] = 0.5 * blk.tr[members[p]];
+      blk.bz[members[p]] = 0.5 * blk.tz[members[p]];
+    }
   }
 }
 
