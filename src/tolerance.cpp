@@ -349,39 +349,59 @@ BuildMetrics BuildEvaluator::evaluate(Model& build, bool trim, bool good_field) 
 // ε L / h ≤ 1e-6) both stay far below the figures' meaning. The worst deviation is a maximum
 // over points and has kinks; there the central difference gives the mean of the one-sided
 // slopes, which is why the direct change at ±1σ is reported beside it.
-SensitivityStudy sensitivities(const Model& design, const ToleranceOptions& options) {
+std::size_t sensitivity_jobs(const Model& design) {
+  std::vector<std::string> declared;
+  const Model expanded = expand_windings(design, &declared);
+  return 1 + 4 * tolerance_parameters(expanded, design.tolerances, declared).size();
+}
+
+std::vector<BuildMetrics> run_sensitivity_jobs(const Model& design, const ToleranceOptions& options, std::size_t begin,
+                                               std::size_t end) {
   options.validate();
   std::vector<std::string> declared;
   const Model expanded = expand_windings(design, &declared);
-  SensitivityStudy study;
-  study.parameters = tolerance_parameters(expanded, design.tolerances, declared);
-  {
-    BuildEvaluator ev(expanded);
-    Model nominal = expanded;
-    study.nominal = ev.evaluate(nominal, options.trim, true);
-  }
-  const std::size_t P = study.parameters.size();
-  // For each parameter: f(+h), f(-h), f(+σ), f(-σ).
-  std::vector<std::array<BuildMetrics, 4>> at(P);
-  const std::size_t jobs = 4 * P;
+  const auto parameters = tolerance_parameters(expanded, design.tolerances, declared);
+  end = std::min(end, 1 + 4 * parameters.size());
+  std::vector<BuildMetrics> out(end > begin ? end - begin : 0);
 #ifdef COILWRIGHT_HAVE_OPENMP
-#pragma omp parallel
+#pragma omp parallel if (out.size() > 1)
 #endif
   {
     BuildEvaluator ev(expanded);
 #ifdef COILWRIGHT_HAVE_OPENMP
 #pragma omp for schedule(dynamic, 1)
 #endif
-    for (std::size_t j = 0; j < jobs; ++j) {
-      const ToleranceParameter& p = study.parameters[j / 4];
-      const double s = p.sigma();
-      const double h = options.step_fraction * s;
-      const double delta = std::array<double, 4>{h, -h, s, -s}[j % 4];
+    for (std::size_t j = begin; j < end; ++j) {
       Model build = expanded;
-      perturb(build, p, delta);
-      at[j / 4][j % 4] = ev.evaluate(build, options.trim, true);
+      if (j > 0) {
+        // Job 1 + 4i + k: parameter i at +h, -h, +sigma, -sigma.
+        const ToleranceParameter& p = parameters[(j - 1) / 4];
+        const double sd = p.sigma();
+        const double h = options.step_fraction * sd;
+        perturb(build, p, std::array<double, 4>{h, -h, sd, -sd}[(j - 1) % 4]);
+      }
+      out[j - begin] = ev.evaluate(build, options.trim, true);
     }
   }
+  return out;
+}
+
+SensitivityStudy sensitivities(const Model& design, const ToleranceOptions& options) {
+  return sensitivities_from(design, options, run_sensitivity_jobs(design, options, 0, sensitivity_jobs(design)));
+}
+
+SensitivityStudy sensitivities_from(const Model& design, const ToleranceOptions& options, const std::vector<BuildMetrics>& jobs) {
+  std::vector<std::string> declared;
+  const Model expanded = expand_windings(design, &declared);
+  SensitivityStudy study;
+  study.parameters = tolerance_parameters(expanded, design.tolerances, declared);
+  const std::size_t P = study.parameters.size();
+  if (jobs.size() != 1 + 4 * P)
+    throw DomainError(fmt::format("sensitivities: {} evaluations given for {} parameters (expected {})", jobs.size(), P, 1 + 4 * P));
+  study.nominal = jobs[0];
+  // For each parameter: f(+h), f(-h), f(+σ), f(-σ).
+  std::vector<std::array<BuildMetrics, 4>> at(P);
+  for (std::size_t j = 1; j < jobs.size(); ++j) at[(j - 1) / 4][(j - 1) % 4] = jobs[j];
   for (std::size_t i = 0; i < P; ++i) {
     const ToleranceParameter& p = study.parameters[i];
     const double h = options.step_fraction * p.sigma();

@@ -43,7 +43,9 @@ nlohmann::json tolerance_json(const ToleranceStudy& s) {
   for (const MetricSpread& m : s.monte_carlo.spread)
     spread[m.metric] = {{"mean", m.mean}, {"standard_deviation", m.standard_deviation}, {"min", m.min}, {"max", m.max}};
   j["spread"] = spread;
-  j["seconds"] = {{"sensitivity", s.seconds_sensitivity}, {"monte_carlo", s.seconds_monte_carlo}};
+  j["seconds"] = {{"sensitivity", s.seconds_sensitivity},
+                  {"monte_carlo", s.seconds_monte_carlo},
+                  {"monte_carlo_cpu", s.cpu_seconds_monte_carlo}};
   return j;
 }
 

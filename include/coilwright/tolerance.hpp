@@ -114,6 +114,15 @@ struct SensitivityStudy {
 // Sensitivities of every BuildMetrics figure to every toleranced dimension of `design`.
 [[nodiscard]] SensitivityStudy sensitivities(const Model& design, const ToleranceOptions& options);
 
+// The same in parts, so that the evaluations can be spread over processes: job 0 is the nominal
+// design, job 1 + 4i + k parameter i at +h, -h, +sigma, -sigma. Each job's result depends only
+// on its index. sensitivities_from() takes all sensitivity_jobs() results in job order.
+[[nodiscard]] std::size_t sensitivity_jobs(const Model& design);
+[[nodiscard]] std::vector<BuildMetrics> run_sensitivity_jobs(const Model& design, const ToleranceOptions& options,
+                                                             std::size_t begin, std::size_t end);
+[[nodiscard]] SensitivityStudy sensitivities_from(const Model& design, const ToleranceOptions& options,
+                                                  const std::vector<BuildMetrics>& jobs);
+
 // Draws build `index` of `design`'s tolerance study (its deltas, one per parameter, in order).
 [[nodiscard]] std::vector<double> draw_build(const std::vector<ToleranceParameter>& parameters, std::uint64_t seed,
                                              std::uint64_t index);

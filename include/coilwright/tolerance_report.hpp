@@ -18,6 +18,7 @@ struct ToleranceStudy {
   ToleranceOptions options;
   double seconds_sensitivity = 0.0;
   double seconds_monte_carlo = 0.0;
+  double cpu_seconds_monte_carlo = 0.0;  // processor time of all threads (0 where not measured)
 };
 
 // The model ready for a study: any solved currents are solved on its target and then fixed.

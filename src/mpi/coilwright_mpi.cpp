@@ -1,7 +1,8 @@
 // coilwright-mpi: the embarrassingly parallel jobs spread over MPI ranks (one per node, OpenMP
-// inside). Every rank reads the same input; each runs its share (builds [N r/P, N (r+1)/P), or
-// starts s with s mod P = r); rank 0 gathers the results in index order and writes the same
-// files as `coilwright`, so a run with any number of ranks gives the single-process result.
+// inside). Every rank reads the same input; each runs its share (Monte Carlo builds and
+// sensitivity evaluations [N r/P, N (r+1)/P), or starts s with s mod P = r); rank 0 gathers the
+// results in index order and writes the same files as `coilwright`, so a run with any number of
+// ranks gives the single-process result.
 #include <mpi.h>
 
 #include <chrono>
@@ -58,10 +59,11 @@ std::uint64_t block_begin(std::uint64_t n, const World& w, int r) {
   return n * static_cast<std::uint64_t>(r) / static_cast<std::uint64_t>(w.size);
 }
 
-// Every rank's builds, gathered on rank 0 in index order (empty elsewhere).
-std::vector<BuildMetrics> distributed_builds(const Model& design, const ToleranceOptions& o, const World& w) {
-  const auto n = static_cast<std::uint64_t>(o.samples);
-  const auto mine = run_builds(design, o, block_begin(n, w, w.rank), block_begin(n, w, w.rank + 1));
+// Evaluations [0, n) split into one block per rank, run(begin, end) on each, gathered on rank 0
+// in index order (empty elsewhere).
+template <class Run>
+std::vector<BuildMetrics> distributed(std::uint64_t n, const World& w, Run&& run) {
+  const auto mine = run(block_begin(n, w, w.rank), block_begin(n, w, w.rank + 1));
   std::vector<double> send(mine.size() * kBuildDoubles);
   for (std::size_t i = 0; i < mine.size(); ++i) pack(mine[i], &send[i * kBuildDoubles]);
   std::vector<int> counts(static_cast<std::size_t>(w.size)), displs(static_cast<std::size_t>(w.size));
@@ -88,13 +90,18 @@ void tolerance_job(const std::string& file, const ToleranceOptions& options, con
   s.options = options;
   s.options.validate();
   const auto t0 = Clock::now();
+  // The sensitivities' evaluations and the builds are both spread over the ranks.
+  const auto jobs = distributed(sensitivity_jobs(design), w, [&](std::uint64_t b, std::uint64_t e) {
+    return run_sensitivity_jobs(design, s.options, static_cast<std::size_t>(b), static_cast<std::size_t>(e));
+  });
   if (w.rank == 0) {
     Evaluator ev(design);
     s.nominal = ev.metrics(design);
-    s.sensitivity = sensitivities(design, s.options);
+    s.sensitivity = sensitivities_from(design, s.options, jobs);
   }
   const auto t1 = Clock::now();
-  s.builds = distributed_builds(design, s.options, w);
+  s.builds = distributed(static_cast<std::uint64_t>(s.options.samples), w,
+                         [&](std::uint64_t b, std::uint64_t e) { return run_builds(design, s.options, b, e); });
   const auto t2 = Clock::now();
   if (w.rank != 0) return;
   s.monte_carlo = summarise(s.builds, s.options.good_field);
