@@ -2,12 +2,14 @@
 #include "coilwright/report.hpp"
 
 #include <algorithm>
+#include <charconv>
 #include <chrono>
 #include <cmath>
 #include <cstdlib>
 #include <ctime>
 #include <fstream>
 #include <iterator>
+#include <optional>
 #include <sstream>
 
 #include <fmt/format.h>
@@ -15,9 +17,11 @@
 
 #include "coilwright/atomic_file.hpp"
 #include "coilwright/config.hpp"
+#include "coilwright/csv.hpp"
 #include "coilwright/error.hpp"
 #include "coilwright/hardware.hpp"
 #include "coilwright/metrics.hpp"
+#include "coilwright/text_lines.hpp"
 
 namespace coilwright {
 
@@ -211,39 +215,37 @@ std::string figure_html(const Figure& f, const std::string& id) {
 
 // The worst_relative_deviation column of a tolerance study's builds CSV; empty without the file.
 std::vector<double> worst_deviation_of_builds(const std::filesystem::path& file) {
-  std::ifstream in(file);
+  std::ifstream in(file, std::ios::binary);
   std::vector<double> out;
   if (!in) return out;
-  std::string line;
-  if (!std::getline(in, line)) return out;
-  std::size_t column = 0, at = 0;
-  bool found = false;
-  for (std::size_t k = 0;; ++k) {
-    const std::size_t comma = line.find(',', at);
-    if (line.substr(at, comma == std::string::npos ? std::string::npos : comma - at) == "worst_relative_deviation") {
-      column = k;
-      found = true;
-      break;
-    }
-    if (comma == std::string::npos) break;
-    at = comma + 1;
-  }
-  if (!found) throw InputError(SourceLocation{file.string(), 1, 0}, "worst_relative_deviation", "the builds CSV has no such column");
-  std::size_t row = 1;
-  while (std::getline(in, line)) {
-    ++row;
-    if (line.empty()) continue;
-    std::size_t start = 0;
-    for (std::size_t k = 0; k < column && start != std::string::npos; ++k) {
-      start = line.find(',', start);
-      if (start != std::string::npos) ++start;
-    }
+  // Read with the CSV readers' rules (BOM, CRLF, quoting, binary refused), a block at a time.
+  LineReader lines(in, file.string());
+  constexpr std::string_view kKey = "worst_relative_deviation";
+  std::string_view line;
+  std::optional<std::size_t> column;
+  while (lines.next(line)) {
+    if (line.empty() || line.front() == '#') continue;
+    std::vector<detail::CsvField> fields;
     try {
-      if (start == std::string::npos) throw std::invalid_argument("missing");
-      out.push_back(std::stod(line.substr(start)));
-    } catch (const std::exception&) {
-      throw InputError(SourceLocation{file.string(), row, 0}, "worst_relative_deviation", "not a number");
+      fields = detail::split_csv_fields(line);
+    } catch (const InputError& e) {
+      throw InputError(SourceLocation{file.string(), lines.line_number(), e.where().column}, "", e.what());
     }
+    if (!column) {
+      for (std::size_t k = 0; k < fields.size() && !column; ++k)
+        if (fields[k].text == kKey) column = k;
+      if (!column)
+        throw InputError(SourceLocation{file.string(), lines.line_number(), 1}, std::string(kKey),
+                         "the builds CSV has no such column; accepted: the file 'coilwright tolerance' writes");
+      continue;
+    }
+    const std::string text = *column < fields.size() ? fields[*column].text : std::string();
+    double v = 0.0;
+    const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
+    if (text.empty() || ec != std::errc{} || end != text.data() + text.size() || !std::isfinite(v))
+      throw InputError(SourceLocation{file.string(), lines.line_number(), *column < fields.size() ? fields[*column].column : line.size() + 1},
+                       std::string(kKey), fmt::format("found \"{}\"; accepted: a finite number", text));
+    out.push_back(v);
   }
   return out;
 }
