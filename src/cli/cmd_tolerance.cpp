@@ -2,6 +2,7 @@
 #include <chrono>
 #include <ctime>
 #include <filesystem>
+#include <limits>
 #include <string>
 
 #include <fmt/format.h>
@@ -37,7 +38,9 @@ void add_tolerance_command(CLI::App& app, const GlobalOptions& global) {
       "Writes <design>-builds.csv (one row per build) and <design>-tolerance.json to --out\n"
       "(default: the design's folder). Results are the same for any --threads.");
   cmd->add_option("design", args->design, "Design or config file (TOML)")->required()->check(CLI::ExistingFile);
-  cmd->add_option("--samples", args->samples, "Monte Carlo builds (0: sensitivities only)")->check(CLI::NonNegativeNumber);
+  // A range, not NonNegativeNumber, whose message printed the 309-digit largest double.
+  cmd->add_option("--samples", args->samples, "Monte Carlo builds (0: sensitivities only)")
+      ->check(CLI::Range(0, std::numeric_limits<int>::max()));
   cmd->add_option("--seed", args->seed, "Seed of the builds (build i depends on seed and i only)");
   cmd->add_flag("--trim", args->trim, "Re-solve the circuit currents on each build (a calibration trim)");
   cmd->add_flag("--good-field", args->good_field, "Also find each build's good-field radius (slower)");
