@@ -168,6 +168,8 @@ TEST_CASE("bad inputs: every case exits with its code and prints its message", "
         CHECK(r.max_rss_kb / 1024 <= max_rss_mb);
       }
       fs::remove_all(tmp);
+      std::error_code ec;
+      fs::remove(tmp.parent_path(), ec);  // the per-process folder, once empty
     }
   }
 }
