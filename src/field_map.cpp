@@ -135,7 +135,11 @@ FieldMap compute_field_map(const Model& model, const MapLattice& lattice) {
   }
   map.field_T = field_of_model(model, map.points);
   std::optional<GoalSpec> goal;
-  if (model.target) {
+  // A null goal's scale is its ambient field: without one there is nothing to deviate from, and
+  // the map holds the coils' field alone.
+  const auto& t = model.target;
+  const bool has_scale = t && !(t->goal == Goal::null && !(t->ambient && t->ambient->uniform_T.norm() > 0.0));
+  if (has_scale) {
     goal = GoalSpec::from(*model.target);
     map.reference_T = goal->reference_T;
     map.tolerance_relative = goal->tolerance_T / goal->reference_T;

@@ -194,3 +194,19 @@ TEST_CASE("[[map]] mistakes name the map, the key and what is accepted") {
           "[[map]]\nname = \"a\"\nkind = \"line\"\n",
           "duplicate map name \"a\"");
 }
+
+TEST_CASE("A map of a null-goal rig without an ambient field holds the coils' field and no deviation") {
+  std::string text = kLoopWithTarget;
+  const auto at = text.find("goal = \"uniform\"");
+  REQUIRE(at != std::string::npos);
+  text.replace(at, text.find("tolerance") - at, "goal = \"null\"\n");
+  text.replace(text.find("tolerance = \"1 %\""), 17, "tolerance = \"20 nT\"");
+  const Model m = parse_model(text, "null-map.toml");
+  REQUIRE(m.target->goal == Goal::null);
+  const FieldMap map = compute_field_map(m, line_lattice(Vec3(0, 0, -0.05), Vec3(0, 0, 0.05), 11));
+  CHECK(map.reference_T == 0.0);
+  for (std::size_t i = 0; i < 11; ++i) {
+    CHECK(std::isnan(map.deviation[i]));
+    CHECK(map.field_T[i].z() > 0.0);
+  }
+}
