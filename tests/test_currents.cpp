@@ -4,6 +4,7 @@
 // gradient pointing out of the box. Checked against brute force over all active sets.
 #include <catch2/catch.hpp>
 
+#include <cmath>
 #include <random>
 
 #include <Eigen/QR>
@@ -83,5 +84,37 @@ TEST_CASE("random problems agree with brute force over active sets", "[currents]
     REQUIRE(((hi - r.x).array() >= -1e-15).all());
     // Same optimal residual as brute force, to rounding (1e-10 relative: QR on well-conditioned 10x4 systems).
     CHECK(r.residual_norm == Approx(brute_force_best(A, b, lo, hi)).epsilon(1e-10).margin(1e-12));
+  }
+}
+
+TEST_CASE("the normal equations agree with QR where accepted and refuse ill-conditioned columns", "[currents]") {
+  // Two columns at a small angle theta: kappa = cot(theta/2) after equilibration, so the Gram
+  // matrix's reciprocal condition number is tan(theta/2)^2 (accepted above kMinGramRcond).
+  std::mt19937_64 rng(3);
+  std::normal_distribution<double> g(0.0, 1.0);
+  const int m = 500;
+  Eigen::VectorXd u(m), v(m), b(m);
+  for (int i = 0; i < m; ++i) u[i] = g(rng), v[i] = g(rng), b[i] = g(rng);
+  v -= u * (u.dot(v) / u.squaredNorm());
+  u.normalize();
+  v.normalize();
+  const Eigen::VectorXd lo = Eigen::Vector2d(-1e9, -1e9), hi = Eigen::Vector2d(1e9, 1e9);
+  for (const double theta : {0.5, 1e-2, 3e-3, 1e-4, 1e-7}) {
+    Eigen::MatrixXd A(m, 2);
+    A.col(0) = 3.0 * u;
+    A.col(1) = 0.01 * (std::cos(theta) * u + std::sin(theta) * v);
+    coilwright::GramMatrix G = A.transpose() * A;
+    coilwright::GramVector c = A.transpose() * b, x(2);
+    const bool accepted = coilwright::solve_bounded_normal_equations(G, c, b.norm(), lo, hi, x);
+    const double rcond = std::pow(std::tan(0.5 * theta), 2);
+    CHECK(accepted == (rcond >= coilwright::kMinGramRcond));
+    const Eigen::VectorXd qr = A.colPivHouseholderQr().solve(b);
+    const auto r = solve_bounded_least_squares(A, b, lo, hi);
+    // Either path: the currents to kappa^2 eps (normal equations; QR is better), with kappa
+    // = cot(theta/2) <= 1e3 where accepted; the fitted values to kappa eps.
+    const double kappa = 1.0 / std::tan(0.5 * theta);
+    CHECK((r.x - qr).norm() <= 10.0 * kappa * kappa * 2.2e-16 * qr.norm());
+    CHECK((A * r.x - A * qr).norm() <= 10.0 * kappa * 2.2e-16 * b.norm());
+    if (accepted) CHECK((Eigen::VectorXd(x) - qr).norm() <= 10.0 * kappa * kappa * 2.2e-16 * qr.norm());
   }
 }
