@@ -40,14 +40,48 @@ std::vector<Vec3> polygon_path(const std::vector<Vec3>& corners) {
   return path;
 }
 
+// The unit circle once for all: circular paths are sampled in search evaluations.
+const std::array<std::pair<double, double>, kCircleSamples>& unit_circle() {
+  static const std::array<std::pair<double, double>, kCircleSamples> circle = [] {
+    std::array<std::pair<double, double>, kCircleSamples> c{};
+    for (int k = 0; k < kCircleSamples; ++k) {
+      const double phi = 2.0 * std::numbers::pi * k / kCircleSamples;
+      c[static_cast<std::size_t>(k)] = {std::cos(phi), std::sin(phi)};
+    }
+    return c;
+  }();
+  return circle;
+}
+
+void sample_circle(const WindingBody& b, std::vector<Vec3>& path) {
+  const Frame f = Frame::from_axis(b.axis, b.reference);
+  const double rho_mid = 0.5 * (b.rho_in_m + b.rho_out_m);
+  path.clear();
+  path.reserve(kCircleSamples);
+  for (const auto& [cos_phi, sin_phi] : unit_circle()) path.push_back(b.centre_m + rho_mid * (cos_phi * f.u + sin_phi * f.v));
+}
+
+// The body's path: its own, or a circular body's sampled into `scratch` when it was built without.
+const std::vector<Vec3>& path_of(const WindingBody& b, std::vector<Vec3>& scratch) {
+  if (!b.circular || !b.path_m.empty()) return b.path_m;
+  sample_circle(b, scratch);
+  return scratch;
+}
+
+bool coaxial(const WindingBody& a, const WindingBody& b) {
+  if (!(a.circular && b.circular && a.axis.cross(b.axis).norm() < 1e-12)) return false;
+  const Vec3 d = b.centre_m - a.centre_m;
+  return (d - d.dot(a.axis) * a.axis).norm() < 1e-12 * std::max(1.0, d.norm());
+}
+
 }  // namespace
 
-WindingBody body_of(const Winding& w) {
+WindingBody body_of(const Winding& w, Paths paths) {
   const Coil& c = *w.coil;
   WindingBody b;
   b.centre_m = w.centre_m;
   b.axis = c.axis.normalized();
-  const Frame f = Frame::from_axis(c.axis, c.width_axis);
+  b.reference = c.width_axis;
   switch (c.shape) {
     case Shape::loop:
       b.circular = true;
@@ -66,6 +100,7 @@ WindingBody body_of(const Winding& w) {
       b.half_width_m = 0.5 * c.length_m;
       break;
     case Shape::rectangle: {
+      const Frame f = Frame::from_axis(c.axis, c.width_axis);
       const double hw = 0.5 * c.width_m, hh = 0.5 * c.height_m;
       b.path_m = polygon_path({w.centre_m + hw * f.u + hh * f.v, w.centre_m - hw * f.u + hh * f.v,
                                w.centre_m - hw * f.u - hh * f.v, w.centre_m + hw * f.u - hh * f.v});
@@ -79,26 +114,15 @@ WindingBody body_of(const Winding& w) {
       return b;
     }
   }
-  // The unit circle once for all: body_of runs in every search evaluation.
-  static const std::array<std::pair<double, double>, kCircleSamples> kCircle = [] {
-    std::array<std::pair<double, double>, kCircleSamples> circle{};
-    for (int k = 0; k < kCircleSamples; ++k) {
-      const double phi = 2.0 * std::numbers::pi * k / kCircleSamples;
-      circle[static_cast<std::size_t>(k)] = {std::cos(phi), std::sin(phi)};
-    }
-    return circle;
-  }();
-  const double rho_mid = 0.5 * (b.rho_in_m + b.rho_out_m);
-  b.path_m.reserve(kCircleSamples);
-  for (const auto& [cos_phi, sin_phi] : kCircle) b.path_m.push_back(w.centre_m + rho_mid * (cos_phi * f.u + sin_phi * f.v));
+  if (paths == Paths::always) sample_circle(b, b.path_m);
   b.tube_radius_m = std::hypot(0.5 * (b.rho_out_m - b.rho_in_m), b.half_width_m);
   return b;
 }
 
-std::vector<WindingBody> bodies_of(std::span<const Coil> coils) {
+std::vector<WindingBody> bodies_of(std::span<const Coil> coils, Paths paths) {
   std::vector<WindingBody> out;
   for (const Coil& c : coils)
-    for (const Winding& w : windings(c)) out.push_back(body_of(w));
+    for (const Winding& w : windings(c)) out.push_back(body_of(w, paths));
   return out;
 }
 
@@ -119,22 +143,23 @@ double distance_to(const WindingBody& body, const Vec3& p) {
 }
 
 double gap_m(const WindingBody& a, const WindingBody& b) {
-  if (a.circular && b.circular && a.axis.cross(b.axis).norm() < 1e-12) {
-    const Vec3 d = b.centre_m - a.centre_m;
-    const double dz = d.dot(a.axis);
-    if ((d - dz * a.axis).norm() < 1e-12 * std::max(1.0, d.norm()))
-      return rect_gap(a.rho_in_m, a.rho_out_m, -a.half_width_m, a.half_width_m, b.rho_in_m, b.rho_out_m,
-                      dz - b.half_width_m, dz + b.half_width_m);
+  if (coaxial(a, b)) {
+    const double dz = (b.centre_m - a.centre_m).dot(a.axis);
+    return rect_gap(a.rho_in_m, a.rho_out_m, -a.half_width_m, a.half_width_m, b.rho_in_m, b.rho_out_m,
+                    dz - b.half_width_m, dz + b.half_width_m);
   }
   // Sampled paths: distance of each sample of one path to the segments of the other.
+  std::vector<Vec3> scratch_a, scratch_b;
+  const std::vector<Vec3>& pa = path_of(a, scratch_a);
+  const std::vector<Vec3>& pb = path_of(b, scratch_b);
   double best = std::numeric_limits<double>::infinity();
-  auto scan = [&best](const WindingBody& from, const WindingBody& to) {
-    const std::size_t n = to.path_m.size();
-    for (const Vec3& p : from.path_m)
-      for (std::size_t i = 0; i < n; ++i) best = std::min(best, point_segment_distance(p, to.path_m[i], to.path_m[(i + 1) % n]));
+  auto scan = [&best](const std::vector<Vec3>& from, const std::vector<Vec3>& to) {
+    const std::size_t n = to.size();
+    for (const Vec3& p : from)
+      for (std::size_t i = 0; i < n; ++i) best = std::min(best, point_segment_distance(p, to[i], to[(i + 1) % n]));
   };
-  scan(a, b);
-  scan(b, a);
+  scan(pa, pb);
+  scan(pb, pa);
   return best - a.tube_radius_m - b.tube_radius_m;
 }
 
@@ -152,7 +177,8 @@ Extents extents(std::span<const WindingBody> bodies, const Vec3& centre, const V
       e.max_axial_m = std::max(e.max_axial_m, std::abs(z) + b.half_width_m);
       continue;
     }
-    for (const Vec3& p : b.path_m) {
+    std::vector<Vec3> scratch;
+    for (const Vec3& p : path_of(b, scratch)) {
       const Vec3 d = p - centre;
       const double z = d.dot(a);
       const double rho = (d - z * a).norm();

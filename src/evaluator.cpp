@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <limits>
 
 #include <fmt/format.h>
@@ -20,6 +21,157 @@ namespace {
 
 constexpr int kBisectionSteps = 20;  // good-field radius to 1e-6 of the nearest-conductor distance
 constexpr double kStructuralZero = 1e-10;  // on-axis terms smaller than this (normalised) vanish by symmetry
+
+// The per-evaluation sums below are compiled for AVX-512, AVX2+FMA and the baseline like the
+// kernels (see kernels_loop.cpp). Each keeps kLanes independent partial sums, combined in a fixed
+// order, so that the compiler may vectorise without -ffast-math and the result does not depend
+// on the thread count (only, through FMA contraction, on the instruction set).
+#if defined(__GNUC__) && !defined(__clang__) && defined(__x86_64__) && !defined(__AVX512F__) && \
+    !defined(COILWRIGHT_NO_MULTIVERSION)
+#define COILWRIGHT_CLONES __attribute__((target_clones("arch=x86-64-v4", "arch=x86-64-v3", "default")))
+#else
+#define COILWRIGHT_CLONES
+#endif
+
+constexpr std::size_t kLanes = 8;  // partial sums per entry: one AVX-512 register
+// kLanes doubles as one value (GCC vector extension): one register in the AVX-512 clone, split
+// into narrower ones by the compiler in the others.
+using Lanes = double __attribute__((vector_size(kLanes * sizeof(double))));
+
+// Unaligned load; by reference, as a vector return value would have no fixed ABI across clones.
+[[gnu::always_inline]] inline void load(Lanes& v, const double* p) { std::memcpy(&v, p, sizeof v); }
+inline double sum_lanes(const Lanes& a) { return ((a[0] + a[4]) + (a[1] + a[5])) + ((a[2] + a[6]) + (a[3] + a[7])); }
+
+// G = CᵀC (k x k, column-major) and c = Cᵀb for k columns C of length n, in one pass over
+// memory. K > 0 fixes k at compile time, so that the k(k+3)/2 sums stay in registers as
+// independent chains (a single chain would wait on the adder's latency).
+template <std::size_t K>
+[[gnu::always_inline]] inline void gram_pass(std::size_t k, const double* const* col, const double* b, std::size_t n,
+                                             double* G, double* c) {
+  constexpr std::size_t kEntries = K > 0 ? K * (K + 3) / 2 : kMaxGramColumns * (kMaxGramColumns + 3) / 2;
+  const std::size_t kk = K > 0 ? K : k;
+  Lanes acc[kEntries] = {};  // G's lower triangle row by row, then c
+  const std::size_t full = n - n % kLanes;
+  for (std::size_t i = 0; i < full; i += kLanes) {
+    Lanes x[K > 0 ? K : kMaxGramColumns];
+    for (std::size_t j = 0; j < kk; ++j) load(x[j], col[j] + i);
+    Lanes y;
+    load(y, b + i);
+    std::size_t e = 0;
+    for (std::size_t j = 0; j < kk; ++j)
+      for (std::size_t l = 0; l <= j; ++l, ++e) acc[e] += x[j] * x[l];
+    for (std::size_t j = 0; j < kk; ++j, ++e) acc[e] += x[j] * y;
+  }
+  for (std::size_t i = full; i < n; ++i) {  // the last rows, one lane each
+    std::size_t e = 0;
+    for (std::size_t j = 0; j < kk; ++j)
+      for (std::size_t l = 0; l <= j; ++l, ++e) acc[e][i - full] += col[j][i] * col[l][i];
+    for (std::size_t j = 0; j < kk; ++j, ++e) acc[e][i - full] += col[j][i] * b[i];
+  }
+  std::size_t e = 0;
+  for (std::size_t j = 0; j < kk; ++j)
+    for (std::size_t l = 0; l <= j; ++l, ++e) G[j + l * kk] = G[l + j * kk] = sum_lanes(acc[e]);
+  for (std::size_t j = 0; j < kk; ++j, ++e) c[j] = sum_lanes(acc[e]);
+}
+
+COILWRIGHT_CLONES
+void gram(std::size_t k, const double* const* col, const double* b, std::size_t n, double* G, double* c) {
+  switch (k) {
+    case 1: gram_pass<1>(k, col, b, n, G, c); break;
+    case 2: gram_pass<2>(k, col, b, n, G, c); break;
+    case 3: gram_pass<3>(k, col, b, n, G, c); break;
+    default: gram_pass<0>(k, col, b, n, G, c); break;
+  }
+}
+
+// The coils' field f = A I (A: 3n x k, column-major) against the wanted field at n samples:
+// max_i |f_i - want_i|^2 into worst2 and, with weights, sum_i w_i |f_i - want_i|^2 into sum.
+// For a gradient goal (axis given) the deviation is a·f_i - want_i and want has n rows.
+template <std::size_t K, bool Scalar, bool Weighted>
+[[gnu::always_inline]] inline void deviation_pass(std::size_t n, std::size_t k, const double* A, const double* I,
+                                                  const double* want, const double* axis, const double* weight,
+                                                  double* worst2, double* sum) {
+  const std::size_t kk = K > 0 ? K : k;
+  Lanes m = {}, s = {};
+  const std::size_t full = n - n % kLanes;
+  for (std::size_t i = 0; i < full; i += kLanes) {
+    Lanes fx = {}, fy = {}, fz = {}, ax, ay, az;
+    for (std::size_t c = 0; c < kk; ++c) {
+      const double* a = A + c * 3 * n + i;
+      load(ax, a);
+      load(ay, a + n);
+      load(az, a + 2 * n);
+      fx += ax * I[c];
+      fy += ay * I[c];
+      fz += az * I[c];
+    }
+    Lanes d2, wx, wy, wz;
+    if constexpr (Scalar) {
+      load(wx, want + i);
+      const Lanes e = axis[0] * fx + axis[1] * fy + axis[2] * fz - wx;
+      d2 = e * e;
+    } else {
+      load(wx, want + i);
+      load(wy, want + n + i);
+      load(wz, want + 2 * n + i);
+      const Lanes dx = fx - wx, dy = fy - wy, dz = fz - wz;
+      d2 = dx * dx + dy * dy + dz * dz;
+    }
+    m = m < d2 ? d2 : m;
+    if constexpr (Weighted) {
+      Lanes w;
+      load(w, weight + i);
+      s += w * d2;
+    }
+  }
+  for (std::size_t i = full; i < n; ++i) {  // the last rows, one lane each
+    double fx = 0.0, fy = 0.0, fz = 0.0;
+    for (std::size_t c = 0; c < kk; ++c) {
+      const double* a = A + c * 3 * n + i;
+      fx += a[0] * I[c];
+      fy += a[n] * I[c];
+      fz += a[2 * n] * I[c];
+    }
+    double d2;
+    if constexpr (Scalar) {
+      const double e = axis[0] * fx + axis[1] * fy + axis[2] * fz - want[i];
+      d2 = e * e;
+    } else {
+      const double dx = fx - want[i], dy = fy - want[n + i], dz = fz - want[2 * n + i];
+      d2 = dx * dx + dy * dy + dz * dz;
+    }
+    const std::size_t t = i - full;
+    m[t] = m[t] < d2 ? d2 : m[t];
+    if constexpr (Weighted) s[t] += weight[i] * d2;
+  }
+  double worst = 0.0;
+  for (std::size_t t = 0; t < kLanes; ++t) worst = worst < m[t] ? m[t] : worst;
+  *worst2 = worst;
+  *sum = sum_lanes(s);
+}
+
+template <std::size_t K>
+[[gnu::always_inline]] inline void deviation_case(std::size_t n, std::size_t k, const double* A, const double* I,
+                                                  const double* want, const double* axis, const double* weight,
+                                                  double* worst2, double* sum) {
+  if (axis)
+    weight ? deviation_pass<K, true, true>(n, k, A, I, want, axis, weight, worst2, sum)
+           : deviation_pass<K, true, false>(n, k, A, I, want, axis, weight, worst2, sum);
+  else
+    weight ? deviation_pass<K, false, true>(n, k, A, I, want, axis, weight, worst2, sum)
+           : deviation_pass<K, false, false>(n, k, A, I, want, axis, weight, worst2, sum);
+}
+
+COILWRIGHT_CLONES
+void deviations(std::size_t n, std::size_t k, const double* A, const double* I, const double* want, const double* axis,
+                const double* weight, double* worst2, double* sum) {
+  switch (k) {
+    case 1: deviation_case<1>(n, k, A, I, want, axis, weight, worst2, sum); break;
+    case 2: deviation_case<2>(n, k, A, I, want, axis, weight, worst2, sum); break;
+    case 3: deviation_case<3>(n, k, A, I, want, axis, weight, worst2, sum); break;
+    default: deviation_case<0>(n, k, A, I, want, axis, weight, worst2, sum); break;
+  }
+}
 
 bool on_target_axis(const Model& model, const Vec3& centre, const Vec3& a) {
   for (const Coil& c : model.coils) {
@@ -156,9 +308,12 @@ Evaluator::Evaluator(const Model& model)
                          : throw InputError(SourceLocation{model.source_file}, "target", "the model has no [target] table")),
       samples_(sample_region(*model.target, detect_symmetry(model))),
       boundary_(samples_.boundary),
-      volume_(samples_.volume) {
+      volume_(samples_.volume),
+      boundary_goal_(sample_goal(samples_.boundary, nullptr)),
+      volume_goal_(sample_goal(samples_.volume, &samples_.weights)),
+      field_symmetry_(detect_symmetry(model)) {
   // A winding that enters the region would put conductors among the samples.
-  const auto bodies = bodies_of(model.coils);
+  const auto bodies = bodies_of(model.coils, Paths::when_needed);
   for (const PointSet* pts : {&samples_.boundary, &samples_.volume})
     for (std::size_t i = 0; i < pts->size(); ++i)
       for (std::size_t b = 0; b < bodies.size(); ++b)
@@ -180,49 +335,125 @@ std::size_t Evaluator::coil_evaluations() const noexcept {
   return boundary_.coil_evaluations() + volume_.coil_evaluations();
 }
 
-void Evaluator::solve_currents(Model& model, const ResponseMatrix& A, const PointSet& pts,
-                               const std::vector<double>* weights) {
-  std::vector<Eigen::Index> solved;
-  for (std::size_t c = 0; c < model.circuits.size(); ++c)
-    if (model.circuits[c].solved) solved.push_back(static_cast<Eigen::Index>(c));
-  if (solved.empty()) return;
+Evaluator::SampleGoal Evaluator::sample_goal(const PointSet& pts, const std::vector<double>* weights) const {
+  SampleGoal g;
   const auto n = static_cast<Eigen::Index>(pts.size());
-  const bool scalar = goal_.goal == Goal::gradient;  // only B·a is prescribed
-  const Eigen::Index rows = scalar ? n : 3 * n;
-  Eigen::MatrixXd M(rows, static_cast<Eigen::Index>(solved.size()));
-  Eigen::VectorXd rhs(rows);
-  // The fixed circuits' field is part of the right-hand side.
-  Eigen::VectorXd fixed_I = currents_of(model);
-  for (Eigen::Index c : solved) fixed_I[c] = 0.0;
-  const Eigen::VectorXd b_fixed = A * fixed_I;
   const Vec3& a = goal_.axis;
-  for (Eigen::Index i = 0; i < n; ++i) {
-    const Vec3 p = pts[static_cast<std::size_t>(i)];
-    const double w = weights ? std::sqrt((*weights)[static_cast<std::size_t>(i)]) : 1.0;
-    const Vec3 known = goal_.ambient_at(p) + Vec3(b_fixed[i], b_fixed[n + i], b_fixed[2 * n + i]);
-    if (scalar) {
+  if (goal_.goal == Goal::gradient) {  // only B·a is prescribed
+    g.want.resize(n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+      const Vec3 p = pts[static_cast<std::size_t>(i)];
       const double s = (p - goal_.centre_m).dot(a);
-      rhs[i] = w * (goal_.field_T.dot(a) + goal_.gradient_T_per_m * s - known.dot(a));
-      for (std::size_t k = 0; k < solved.size(); ++k) {
-        const Eigen::Index c = solved[k];
-        M(i, static_cast<Eigen::Index>(k)) = w * (a.x() * A(i, c) + a.y() * A(n + i, c) + a.z() * A(2 * n + i, c));
+      g.want[i] = goal_.field_T.dot(a) + goal_.gradient_T_per_m * s - goal_.ambient_at(p).dot(a);
+    }
+  } else {
+    g.want.resize(3 * n);
+    for (Eigen::Index i = 0; i < n; ++i) {
+      const Vec3 p = pts[static_cast<std::size_t>(i)];
+      const Vec3 want = (goal_.goal == Goal::uniform ? goal_.field_T : Vec3::Zero()) - goal_.ambient_at(p);
+      for (int d = 0; d < 3; ++d) g.want[d * n + i] = want[d];
+    }
+  }
+  g.rhs = g.want;
+  if (weights) {
+    g.weight = Eigen::Map<const Eigen::VectorXd>(weights->data(), n);
+    g.sqrt_weight = g.weight.cwiseSqrt();
+    for (Eigen::Index d = 0; d < g.want.size() / std::max<Eigen::Index>(n, 1); ++d)
+      g.rhs.segment(d * n, n).array() *= g.sqrt_weight.array();
+  }
+  g.rhs_norm = g.rhs.norm();
+  return g;
+}
+
+void Evaluator::solve_currents(Model& model, const ResponseMatrix& A, const SampleGoal& g) {
+  Workspace& w = work_;
+  w.solved.clear();
+  for (std::size_t c = 0; c < model.circuits.size(); ++c)
+    if (model.circuits[c].solved) w.solved.push_back(static_cast<Eigen::Index>(c));
+  if (w.solved.empty()) return;
+  const auto k = static_cast<Eigen::Index>(w.solved.size());
+  const bool scalar = goal_.goal == Goal::gradient;
+  const bool weighted = g.sqrt_weight.size() > 0;
+  const Eigen::Index n = scalar ? g.want.size() : g.want.size() / 3;
+  const Vec3& a = goal_.axis;
+  // B·a of column c at sample i (gradient goal).
+  auto along = [&](Eigen::Index i, Eigen::Index c) { return a.x() * A(i, c) + a.y() * A(n + i, c) + a.z() * A(2 * n + i, c); };
+  // Right-hand side: the (weighted) wanted field, less the fixed circuits' field if they carry current.
+  const Eigen::VectorXd* rhs = &g.rhs;
+  double rhs_norm = g.rhs_norm;
+  for (std::size_t c = 0; c < model.circuits.size(); ++c) {
+    const double I = model.circuits[c].current_A;
+    if (model.circuits[c].solved || I == 0.0) continue;
+    if (rhs != &w.rhs) {
+      w.rhs = g.rhs;
+      rhs = &w.rhs;
+    }
+    const auto col = static_cast<Eigen::Index>(c);
+    for (Eigen::Index i = 0; i < n; ++i) {
+      const double sw = weighted ? g.sqrt_weight[i] : 1.0;
+      if (scalar) {
+        w.rhs[i] -= sw * I * along(i, col);
+      } else {
+        for (Eigen::Index d = 0; d < 3; ++d) w.rhs[d * n + i] -= sw * I * A(d * n + i, col);
       }
-    } else {
-      const Vec3 want = (goal_.goal == Goal::uniform ? goal_.field_T : Vec3::Zero()) - known;
-      for (int d = 0; d < 3; ++d) {
-        rhs[d * n + i] = w * want[d];
-        for (std::size_t k = 0; k < solved.size(); ++k)
-          M(d * n + i, static_cast<Eigen::Index>(k)) = w * A(d * n + i, solved[k]);
+    }
+    rhs_norm = w.rhs.norm();
+  }
+  // The solved columns: A's own when unweighted (no copy), else weighted or projected on a.
+  const bool own = !scalar && !weighted;
+  if (!own) {
+    w.columns.resize(rhs->size(), k);
+    for (Eigen::Index j = 0; j < k; ++j) {
+      const Eigen::Index c = w.solved[static_cast<std::size_t>(j)];
+      if (scalar) {
+        for (Eigen::Index i = 0; i < n; ++i) w.columns(i, j) = (weighted ? g.sqrt_weight[i] : 1.0) * along(i, c);
+      } else {
+        for (Eigen::Index d = 0; d < 3; ++d)
+          w.columns.col(j).segment(d * n, n) = A.col(c).segment(d * n, n).cwiseProduct(g.sqrt_weight);
       }
     }
   }
-  Eigen::VectorXd lo(static_cast<Eigen::Index>(solved.size())), hi(lo.size());
-  for (std::size_t k = 0; k < solved.size(); ++k) {
-    lo[static_cast<Eigen::Index>(k)] = model.circuits[solved[k]].min_current_A;
-    hi[static_cast<Eigen::Index>(k)] = model.circuits[solved[k]].max_current_A;
+  auto write = [&](const auto& x) {
+    for (Eigen::Index j = 0; j < k; ++j) model.circuits[static_cast<std::size_t>(w.solved[static_cast<std::size_t>(j)])].current_A = x[j];
+  };
+  w.lo.resize(k);
+  w.hi.resize(k);
+  for (Eigen::Index j = 0; j < k; ++j) {
+    const Circuit& c = model.circuits[static_cast<std::size_t>(w.solved[static_cast<std::size_t>(j)])];
+    w.lo[j] = c.min_current_A;
+    w.hi[j] = c.max_current_A;
   }
-  const auto sol = solve_bounded_least_squares(M, rhs, lo, hi);
-  for (std::size_t k = 0; k < solved.size(); ++k) model.circuits[solved[k]].current_A = sol.x[static_cast<Eigen::Index>(k)];
+  // Normal equations of the few solved circuits (see currents.hpp for when they are accurate).
+  if (k <= kMaxGramColumns) {
+    const double* cols[kMaxGramColumns];
+    for (Eigen::Index j = 0; j < k; ++j) cols[j] = own ? A.col(w.solved[static_cast<std::size_t>(j)]).data() : w.columns.col(j).data();
+    GramMatrix G(k, k);
+    GramVector c(k), x(k);
+    gram(static_cast<std::size_t>(k), cols, rhs->data(), static_cast<std::size_t>(rhs->size()), G.data(), c.data());
+    if (solve_bounded_normal_equations(G, c, rhs_norm, w.lo, w.hi, x)) {
+      write(x);
+      return;
+    }
+  }
+  // Ill-conditioned (or many circuits): QR of the columns themselves.
+  if (own) {
+    w.columns.resize(rhs->size(), k);
+    for (Eigen::Index j = 0; j < k; ++j) w.columns.col(j) = A.col(w.solved[static_cast<std::size_t>(j)]);
+  }
+  write(solve_bounded_least_squares(w.columns, *rhs, w.lo, w.hi).x);
+}
+
+double Evaluator::deviation_sum(const Model& model, const ResponseMatrix& A, const SampleGoal& g, bool weighted) {
+  Workspace& w = work_;
+  w.currents.resize(static_cast<Eigen::Index>(model.circuits.size()));
+  for (std::size_t c = 0; c < model.circuits.size(); ++c) w.currents[static_cast<Eigen::Index>(c)] = model.circuits[c].current_A;
+  const bool scalar = goal_.goal == Goal::gradient;
+  const auto n = static_cast<std::size_t>(scalar ? g.want.size() : g.want.size() / 3);
+  double worst2 = 0.0, sum = 0.0;
+  deviations(n, static_cast<std::size_t>(A.cols()), A.data(), w.currents.data(), g.want.data(),
+             scalar ? goal_.axis.data() : nullptr, weighted ? g.weight.data() : nullptr, &worst2, &sum);
+  // The maximum is taken over squares: the square root is monotonic.
+  return weighted ? sum : std::sqrt(worst2);
 }
 
 void Evaluator::choose_nulled_terms(const Model& model) {
@@ -306,21 +537,14 @@ double Evaluator::objective(Model& model, Objective objective, ConstraintReport*
   switch (objective) {
     case Objective::worst: {
       const ResponseMatrix& A = boundary_.update(model);
-      solve_currents(model, A, samples_.boundary, nullptr);
-      const auto B = total_field(model, A, samples_.boundary, goal_);
-      for (std::size_t i = 0; i < B.size(); ++i) value = std::max(value, goal_.deviation_T(samples_.boundary[i], B[i]));
-      value /= goal_.reference_T;
+      solve_currents(model, A, boundary_goal_);
+      value = deviation_sum(model, A, boundary_goal_, false) / goal_.reference_T;
       break;
     }
     case Objective::rms: {
       const ResponseMatrix& A = volume_.update(model);
-      solve_currents(model, A, samples_.volume, &samples_.weights);
-      const auto B = total_field(model, A, samples_.volume, goal_);
-      for (std::size_t i = 0; i < B.size(); ++i) {
-        const double dev = goal_.deviation_T(samples_.volume[i], B[i]);
-        value += samples_.weights[i] * dev * dev;
-      }
-      value = std::sqrt(value) / goal_.reference_T;
+      solve_currents(model, A, volume_goal_);
+      value = std::sqrt(deviation_sum(model, A, volume_goal_, true)) / goal_.reference_T;
       break;
     }
     case Objective::order: value = order_objective(model); break;
@@ -334,7 +558,7 @@ double Evaluator::objective(Model& model, Objective objective, ConstraintReport*
 ConstraintReport Evaluator::constraints(const Model& model) const {
   ConstraintReport r;
   const SearchOptions& s = model.search;
-  const auto bodies = bodies_of(model.coils);
+  const auto bodies = bodies_of(model.coils, Paths::when_needed);  // coaxial rings need no path
   const double min_gap = s.min_gap_m.value_or(0.0);
   for (std::size_t i = 0; i < bodies.size(); ++i)
     for (std::size_t j = i + 1; j < bodies.size(); ++j) {
@@ -479,7 +703,7 @@ Metrics Evaluator::metrics(const Model& model) {
   const int res = t.resolution > 0 ? t.resolution : kDefaultResolution;
   const Frame frame = Frame::from_axis(goal_.axis, t.reference);
   const double d = nearest_conductor_m(model, goal_.centre_m);
-  const Symmetry sym = samples_.symmetry;
+  const Symmetry sym = field_symmetry_;
   m.good_field_radius_m = largest_within(0.999 * d, goal_.tolerance_T, [&](double radius) {
     return max_deviation_on(model, own, sphere_surface(goal_.centre_m, frame, radius, res, sym));
   });

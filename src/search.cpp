@@ -85,8 +85,10 @@ struct LocalRun {
   double best = std::numeric_limits<double>::infinity();
   nlopt::opt* opt = nullptr;
 
+  std::vector<double> x;      // the full unit vector being evaluated (kept: no allocation per evaluation)
+
   double evaluate(const std::vector<double>& free_x) {
-    std::vector<double> x = base;
+    x = base;
     for (std::size_t i = 0, k = 0; i < x.size(); ++i)
       if (!frozen[i]) x[i] = free_x[k++];
     space->apply(model, x, round_integers);
@@ -245,8 +247,9 @@ std::vector<double> ParameterSpace::to_unit(const Model& model) const {
 SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
   const SearchOptions& opts = model.search;
   const ParameterSpace space(model);
-  const Evaluator probe(model);  // validates the target before any work
-  (void)probe;
+  // Samples the target and validates it before any work; every start copies it (the samples
+  // and what they ask of the field) rather than sampling again, and fills its own caches.
+  const Evaluator probe(model);
   Budget budget(opts.max_evaluations, opts.max_time_s, hooks);
 
   const bool global_nlopt = opts.global_algorithm != "multistart" && opts.global_algorithm != "none";
@@ -256,7 +259,7 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
 
   // Global stage with an NLopt algorithm: its best point joins the starts for polishing.
   if (global_nlopt && space.size() > 0) {
-    Evaluator ev(model);
+    Evaluator ev(probe);
     LocalRun g(space, ev, model, opts.objective, budget);
     nlopt::opt o(global_algorithm(opts.global_algorithm), static_cast<unsigned>(space.size()));
     g.opt = &o;
@@ -292,7 +295,7 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
   for (std::size_t s = 0; s < points.size(); ++s) {
     if (budget.should_stop() && s > 0) continue;
     if (hooks.runs_start && !hooks.runs_start(s)) continue;
-    Evaluator ev(model);
+    Evaluator ev(probe);
     LocalRun run(space, ev, model, opts.objective, budget);
     const auto x = run.run(points[s], opts.local_algorithm, per_start);
     Design d;
@@ -321,7 +324,7 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
     // Rebuild the designs of starts run elsewhere, by the same steps as above.
     const std::vector<char> ran_here = ran;
     hooks.exchange(local_x, polished_x, ran);
-    Evaluator ev(model);
+    Evaluator ev(probe);
     for (std::size_t s = 0; s < points.size(); ++s) {
       if (!ran[s] || ran_here[s]) continue;
       Design d;
@@ -346,7 +349,7 @@ SearchSummary run_search(const Model& model, const SearchHooks& hooks) {
   const auto t_metrics = Clock::now();
   std::vector<std::vector<double>> kept_x;
   std::vector<double> kept_objective;
-  Evaluator ev(model);
+  Evaluator ev(probe);
   for (Design& d : results) {
     if (static_cast<int>(summary.designs.size()) >= opts.designs) break;
     // The same design when the continuous parameters agree; turns alone do not make a design

@@ -15,12 +15,18 @@ struct WindingBody {
   Vec3 centre_m = Vec3::Zero();
   Vec3 axis = Vec3::UnitZ();
   double rho_in_m = 0.0, rho_out_m = 0.0, half_width_m = 0.0;  // circular: cross-section rectangle
-  std::vector<Vec3> path_m;     // conductor centre-line samples (closed), every shape
+  Vec3 reference = Vec3::UnitX();  // circular: the coil's width_axis, which fixes where its path starts
+  std::vector<Vec3> path_m;     // conductor centre-line samples (closed); see Paths
   double tube_radius_m = 0.0;   // radius about the path that contains the cross-section
 };
 
-[[nodiscard]] WindingBody body_of(const Winding& w);
-[[nodiscard]] std::vector<WindingBody> bodies_of(std::span<const Coil> coils);
+// Circular windings' paths serve only where the closed forms do not (windings off each other's
+// axis, extents about another line); the search checks clearance on every evaluation, so it
+// asks for them `when_needed` and gap_m/extents sample them on the fly in those cases.
+enum class Paths { always, when_needed };
+
+[[nodiscard]] WindingBody body_of(const Winding& w, Paths paths = Paths::always);
+[[nodiscard]] std::vector<WindingBody> bodies_of(std::span<const Coil> coils, Paths paths = Paths::always);
 
 // Clear distance between two windings (negative or zero when they touch or overlap).
 [[nodiscard]] double gap_m(const WindingBody& a, const WindingBody& b);

@@ -43,7 +43,30 @@ class Evaluator {
   [[nodiscard]] std::size_t coil_evaluations() const noexcept;
 
  private:
-  void solve_currents(Model& model, const ResponseMatrix& A, const PointSet& pts, const std::vector<double>* weights);
+  // What a sample set asks of the coils' field, fixed for the Evaluator's life: the goal less
+  // the ambient field at each sample (3n rows [x; y; z], or n of B·a for a gradient goal).
+  struct SampleGoal {
+    Eigen::VectorXd want;         // [T]
+    Eigen::VectorXd weight;       // per sample (volume fraction); empty when unweighted
+    Eigen::VectorXd sqrt_weight;  // its square root, which weights the least-squares rows
+    Eigen::VectorXd rhs;          // want, rows weighted: the least-squares right-hand side
+    double rhs_norm = 0.0;        // |rhs|
+  };
+  // Per-evaluation scratch, sized by the first evaluation. An Evaluator serves one search start
+  // (one thread at a time), so reusing it needs no lock and an evaluation allocates nothing.
+  struct Workspace {
+    std::vector<Eigen::Index> solved;  // circuits whose currents are solved
+    Eigen::VectorXd rhs;               // the right-hand side less the fixed circuits' field
+    Eigen::VectorXd lo, hi;            // bounds of the solved currents [A]
+    Eigen::MatrixXd columns;           // weighted (or projected) solved columns, when not A's own
+    Eigen::VectorXd currents;          // [A], every circuit
+    Eigen::VectorXd field;             // A · currents [T]
+  };
+
+  SampleGoal sample_goal(const PointSet& pts, const std::vector<double>* weights) const;
+  void solve_currents(Model& model, const ResponseMatrix& A, const SampleGoal& g);
+  // max_i |ΔB_i| (weights == false) or sum_i w_i |ΔB_i|^2 over a sample set, in tesla (squared).
+  double deviation_sum(const Model& model, const ResponseMatrix& A, const SampleGoal& g, bool weighted);
   double order_objective(Model& model);
   void choose_nulled_terms(const Model& model);
 
@@ -51,6 +74,12 @@ class Evaluator {
   SampleSet samples_;
   ResponseCache boundary_;
   ResponseCache volume_;
+  SampleGoal boundary_goal_;
+  SampleGoal volume_goal_;
+  // The coils' and goal's own symmetry, which the samples drop for regions without it (points,
+  // box, plane) but the good-field sphere and cylinder of the metrics still have.
+  Symmetry field_symmetry_;
+  Workspace work_;
   std::vector<int> nulled_terms_;
   bool nulled_terms_chosen_ = false;
 };
