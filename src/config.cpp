@@ -15,6 +15,7 @@
 #include <toml++/toml.h>
 
 #include "coilwright/csv.hpp"
+#include "coilwright/sampling.hpp"
 #include "coilwright/units.hpp"
 #include "coilwright/thermal.hpp"
 #include "coilwright/winding.hpp"
@@ -932,8 +933,19 @@ class Reader {
     if (const auto* n = t.get("tolerance")) g.tolerance = tolerance(*n);
     if (const auto* n = t.get("resolution")) {
       const long long r = integer(*n, "target.resolution");
-      if (r < 2 || r > 100000) fail(at(*n), "target.resolution", fmt::format("must be an integer >= 2, found {}", r));
+      if (r < 2 || r > kMaxResolution)
+        fail(at(*n), "target.resolution", fmt::format("found {}; accepted: an integer from 2 to {}", r, kMaxResolution));
       g.resolution = static_cast<int>(r);
+    }
+    // A thin box, a long cylinder or a fine resolution can ask for more samples than any
+    // evaluation can afford: refuse it here rather than let a search run out of memory or time.
+    if (const SampleCount c = count_samples(g); !c.within_limits()) {
+      const auto* n = t.get("resolution");
+      fail(n ? at(*n) : at(*rn), n ? "target.resolution" : "target.region",
+           fmt::format("region '{}' at resolution {} would need {:.3g} sample points and a Gauss-Legendre order of {:.3g}; "
+                       "accepted: at most {:g} points and order {}: lower the resolution or make the region less elongated",
+                       rname, g.resolution > 0 ? g.resolution : kDefaultResolution, c.points, c.gauss_order,
+                       kMaxSamplePoints, kMaxResolution));
     }
     if (const auto* n = t.get("ambient")) g.ambient = ambient(table(*n, "target.ambient"));
     m_.target = std::move(g);

@@ -3,16 +3,21 @@
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <limits>
 #include <mutex>
 #include <numbers>
 #include <stdexcept>
+
+#include <fmt/format.h>
+
+#include "coilwright/error.hpp"
 
 namespace coilwright {
 
 namespace {
 
 constexpr double kPi = std::numbers::pi;
-constexpr int kMaxGaussOrder = 128;
+constexpr int kMaxGaussOrder = kMaxResolution;
 
 GaussLegendre compute_gauss_legendre(int n) {
   // Newton iteration on the three-term recurrence for P_n (Abramowitz & Stegun 22.7.10),
@@ -233,7 +238,62 @@ PointSet cylinder_surface(const Vec3& centre, const Frame& frame, double radius_
   return out;
 }
 
+SampleCount count_samples(const Target& target) {
+  // Mirrors the samplers above with no symmetry (the most points), except the axisymmetric
+  // sphere's polar rule, whose order is the resolution itself.
+  const double r = target.resolution > 0 ? target.resolution : kDefaultResolution;
+  const auto steps = [](double length, double h) { return std::max(1.0, std::ceil(length / h - 1e-9)) + 1.0; };
+  const auto ring = [](double rho, double h) { return std::max(8.0, std::ceil(2.0 * kPi * rho / h - 1e-9)); };
+  const auto order = [](double n) { return std::max(3.0, std::ceil(n - 1e-9)); };
+  SampleCount c;
+  switch (target.region) {
+    case RegionKind::sphere:
+      c.points = std::max(64.0, std::ceil(4.0 * kPi * r * r)) + order(r / 2) * std::max(32.0, std::ceil(kPi * r * r));
+      c.gauss_order = std::max(order(r / 2), r);
+      break;
+    case RegionKind::cylinder: {
+      const double R = target.radius_m, h = R / r, nz = order(r * 0.5 * target.length_m / R);
+      c.points = 2.0 * steps(R, h) * ring(R, h) + steps(0.5 * target.length_m, h) * 2.0 * ring(R, h) +
+                 order(r / 2) * nz * std::max(8.0, 2.0 * r);
+      c.gauss_order = std::max(order(r / 2), nz);
+      break;
+    }
+    case RegionKind::box: {
+      const Vec3 half = 0.5 * target.size_m;
+      const double h = half.minCoeff() / r;
+      double volume = 1.0;
+      for (int a = 0; a < 3; ++a) {
+        const double n = order(r * half[a] / half.maxCoeff());
+        volume *= n;
+        c.gauss_order = std::max(c.gauss_order, n);
+        c.points += 2.0 * steps(2.0 * half[(a + 1) % 3], h) * steps(2.0 * half[(a + 2) % 3], h);
+      }
+      c.points += volume;
+      break;
+    }
+    case RegionKind::plane: {
+      const double hu = 0.5 * target.size_m.x(), hv = 0.5 * target.size_m.y(), h = std::min(hu, hv) / r;
+      const double nu = order(r * hu / std::max(hu, hv)), nv = order(r * hv / std::max(hu, hv));
+      c.points = steps(2.0 * hu, h) * steps(2.0 * hv, h) + nu * nv;
+      c.gauss_order = std::max(nu, nv);
+      break;
+    }
+    case RegionKind::points:
+      c.points = 2.0 * static_cast<double>(target.points.size());
+      break;
+  }
+  // A degenerate region (zero or non-finite size) counts as too many rather than as NaN.
+  if (!std::isfinite(c.points)) c.points = std::numeric_limits<double>::infinity();
+  if (!std::isfinite(c.gauss_order)) c.gauss_order = std::numeric_limits<double>::infinity();
+  return c;
+}
+
 SampleSet sample_region(const Target& target, Symmetry symmetry) {
+  const SampleCount count = count_samples(target);
+  if (!count.within_limits())
+    throw DomainError(fmt::format("the target region would need {:.3g} sample points and a Gauss-Legendre order of {:.3g}; "
+                                  "at most {:g} points and order {} are possible",
+                                  count.points, count.gauss_order, kMaxSamplePoints, kMaxResolution));
   const int res = target.resolution > 0 ? target.resolution : kDefaultResolution;
   SampleSet s;
   const bool symmetric_region = target.region == RegionKind::sphere || target.region == RegionKind::cylinder;

@@ -2,8 +2,11 @@
 #include <catch2/catch.hpp>
 
 #include <cmath>
+#include <string>
+#include <vector>
 
 #include "coilwright/config.hpp"
+#include "coilwright/error.hpp"
 #include "coilwright/sampling.hpp"
 
 using namespace coilwright;
@@ -94,4 +97,67 @@ tolerance = "1 %"
   shifted.coils[0].centre_m = Vec3(0, 0, 0.1);
   CHECK(detect_symmetry(shifted).axisymmetric);
   CHECK_FALSE(detect_symmetry(shifted).mirrored);
+}
+
+TEST_CASE("sample counts bound what sampling makes for every region and symmetry", "[sampling]") {
+  // count_samples must never undercount (the reader refuses by it) and should not overcount by
+  // much without symmetry (it is the limit users see).
+  std::vector<Target> targets;
+  for (int res : {2, 5, 12, 40}) {
+    Target s = sphere_target(0.2);
+    s.resolution = res;
+    Target c = s;
+    c.region = RegionKind::cylinder;
+    c.length_m = 0.7;
+    Target b = s;
+    b.region = RegionKind::box;
+    b.size_m = Vec3(0.3, 0.1, 0.05);
+    Target p = b;
+    p.region = RegionKind::plane;
+    p.size_m = Vec3(0.3, 0.02, 0.0);
+    targets.insert(targets.end(), {s, c, b, p});
+  }
+  for (const Target& t : targets) {
+    const SampleCount count = count_samples(t);
+    INFO("region " << to_string(t.region) << ", resolution " << t.resolution);
+    REQUIRE(count.within_limits());
+    for (Symmetry sym : {Symmetry{false, false}, Symmetry{true, false}, Symmetry{true, true}}) {
+      const SampleSet s = sample_region(t, sym);
+      CHECK(static_cast<double>(s.volume.size() + s.boundary.size()) <= count.points);
+    }
+    const SampleSet full = sample_region(t, Symmetry{});
+    CHECK(static_cast<double>(full.volume.size() + full.boundary.size()) >= 0.5 * count.points);
+  }
+}
+
+TEST_CASE("targets too large to sample are refused by the reader with the count", "[sampling][config]") {
+  // Before: a thin box or a long cylinder asked for ~1e12 samples (a hang, then out of memory),
+  // and a resolution above 128 threw std::out_of_range from the Gauss-Legendre table (exit 1).
+  const std::string coil = "[[circuit]]\nname = \"main\"\ncurrent = \"1 A\"\n"
+                           "[[coil]]\nname = \"a\"\nshape = \"loop\"\nradius = \"2 m\"\n";
+  const auto refusal = [&](const std::string& target) {
+    try {
+      (void)parse_model(coil + "[target]\n" + target + "goal = \"null\"\n", "big.toml");
+    } catch (const InputError& e) {
+      return std::string(e.what());
+    }
+    return std::string("accepted");
+  };
+  using Catch::Matchers::Contains;
+  CHECK_THAT(refusal("region = \"box\"\nsize = [\"1 m\", \"1 m\", \"10 um\"]\n"),
+             Contains("big.toml:9:10") && Contains("target.region") && Contains("sample points") &&
+                 Contains("at most 4e+06 points"));
+  CHECK_THAT(refusal("region = \"cylinder\"\nradius = \"1 mm\"\nlength = \"100 m\"\n"),
+             Contains("target.region") && Contains("less elongated"));
+  CHECK_THAT(refusal("region = \"sphere\"\nradius = \"0.1 m\"\nresolution = 129\n"),
+             Contains("target.resolution") && Contains("found 129; accepted: an integer from 2 to 128"));
+  CHECK_THAT(refusal("region = \"box\"\nsize = [\"1 m\", \"1 m\", \"0.1 m\"]\nresolution = 100\n"),
+             Contains("big.toml:11:14") && Contains("target.resolution") && Contains("resolution 100 would need"));
+  CHECK(refusal("region = \"sphere\"\nradius = \"0.1 m\"\nresolution = 128\n") == "accepted");
+
+  // A target built in code is refused by the sampler itself.
+  Target t = sphere_target(0.1);
+  t.region = RegionKind::plane;
+  t.size_m = Vec3(1.0, 1e-9, 0.0);
+  CHECK_THROWS_AS(sample_region(t, Symmetry{}), DomainError);
 }

@@ -23,9 +23,26 @@ struct SampleSet {
 };
 
 inline constexpr int kDefaultResolution = 12;  // points per radius (or half-side) of the region
+inline constexpr int kMaxResolution = 128;      // the highest Gauss-Legendre order sampling has
+// The most points (volume and boundary together) one target may be sampled with: about 100 MB of
+// samples, and seconds per field evaluation; a larger request is a mistake, not a design.
+inline constexpr double kMaxSamplePoints = 4e6;
+
+// What sample_region would make for a target, counted without making it: the number of points
+// (volume and boundary, the most over any symmetry) and the highest Gauss-Legendre order needed.
+// Doubles, so absurd requests count without overflow.
+struct SampleCount {
+  double points = 0.0;
+  double gauss_order = 0.0;
+  [[nodiscard]] bool within_limits() const noexcept {
+    return points <= kMaxSamplePoints && gauss_order <= kMaxResolution;
+  }
+};
+[[nodiscard]] SampleCount count_samples(const Target& target);
 
 // The samples of a target region. Points lie in the ρ–z half-plane (ρ along the frame's u)
-// when axisymmetric, and on the z >= 0 side of the centre when mirrored.
+// when axisymmetric, and on the z >= 0 side of the centre when mirrored. Throws DomainError when
+// count_samples is beyond its limits (the config reader refuses such targets first).
 [[nodiscard]] SampleSet sample_region(const Target& target, Symmetry symmetry);
 
 // Points on the surface of a sphere (radius_m about centre), honouring the symmetry.
