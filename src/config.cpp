@@ -1447,7 +1447,100 @@ void check_no_intersections(const Model& model) {
     }
 }
 
+namespace detail {
+namespace {
+
+// toml++ 3.3.0 (Debian 12) reaches __builtin_unreachable, undefined behaviour, when it asks
+// whether a non-ASCII character is whitespace: wherever whitespace may stand outside strings
+// and comments ("a = 1 µ"), and after a backslash in a multi-line basic string (upstream
+// marzer/tomlplusplus issues 190 and 295; found by fuzzing). Such text is never valid TOML, so
+// refuse it before the parser sees it. Strings and comments may hold any UTF-8.
+void refuse_non_ascii_outside_strings(std::string_view text, const std::string& source_name) {
+  enum class In { code, comment, basic, literal, ml_basic, ml_literal } in = In::code;
+  std::size_t line = 1, column = 0;
+  const auto refuse = [&](std::string_view where) {
+    throw InputError(SourceLocation{source_name, line, column}, "",
+                     fmt::format("a non-ASCII character {}; accepted: ASCII there (other characters only inside "
+                                 "quoted strings and # comments)", where));
+  };
+  std::size_t i = text.starts_with("\xEF\xBB\xBF") ? 3 : 0;  // a UTF-8 byte-order mark
+  const auto at = [&](std::string_view s) { return text.substr(i, s.size()) == s; };
+  const auto skip_quotes = [&](char q) {  // up to two quotes may end a multi-line string's text
+    for (int k = 0; k < 2 && i + 1 < text.size() && text[i + 1] == q; ++k) ++i, ++column;
+  };
+  for (; i < text.size(); ++i) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    if ((c & 0xC0) != 0x80) ++column;  // columns count characters, not UTF-8 bytes
+    if (c == '\n') {
+      ++line;
+      column = 0;
+      if (in == In::comment || in == In::basic || in == In::literal) in = In::code;
+      continue;
+    }
+    switch (in) {
+      case In::code:
+        if (c >= 0x80) refuse("outside a quoted string or comment");
+        if (c == '#') {
+          in = In::comment;
+        } else if (at(R"(""")")) {
+          in = In::ml_basic, i += 2, column += 2;
+        } else if (at("'''")) {
+          in = In::ml_literal, i += 2, column += 2;
+        } else if (c == '"') {
+          in = In::basic;
+        } else if (c == '\'') {
+          in = In::literal;
+        }
+        break;
+      case In::comment:
+        break;
+      case In::basic:
+        if (c == '\\' && i + 1 < text.size() && text[i + 1] != '\n') {
+          ++i, ++column;
+        } else if (c == '"') {
+          in = In::code;
+        }
+        break;
+      case In::literal:
+        if (c == '\'') in = In::code;
+        break;
+      case In::ml_basic:
+        if (c == '\\') {
+          // The escaped character, or a line-ending backslash and the whitespace it removes.
+          std::size_t j = i + 1;
+          while (j < text.size() && (text[j] == ' ' || text[j] == '\t' || text[j] == '\r' || text[j] == '\n')) ++j;
+          if (j < text.size() && static_cast<unsigned char>(text[j]) >= 0x80) {
+            for (std::size_t k = i + 1; k < j; ++k) {
+              if (text[k] == '\n') {
+                ++line, column = 0;
+              } else {
+                ++column;
+              }
+            }
+            ++column;
+            refuse("after a backslash in a multi-line string");
+          }
+          if (i + 1 < text.size() && text[i + 1] != '\n') ++i, ++column;
+        } else if (at(R"(""")")) {
+          in = In::code, i += 2, column += 2;
+          skip_quotes('"');
+        }
+        break;
+      case In::ml_literal:
+        if (at("'''")) {
+          in = In::code, i += 2, column += 2;
+          skip_quotes('\'');
+        }
+        break;
+    }
+  }
+}
+
+}  // namespace
+}  // namespace detail
+
 Model parse_model(std::string_view toml_text, const std::string& source_name) {
+  detail::refuse_non_ascii_outside_strings(toml_text, source_name);
   toml::table root;
   try {
     root = toml::parse(toml_text, std::string_view(source_name));

@@ -9,6 +9,7 @@
 
 #include "coilwright/config.hpp"
 #include "coilwright/design_writer.hpp"
+#include "coilwright/error.hpp"
 
 using namespace coilwright;
 
@@ -578,4 +579,27 @@ max_field = "13 nT"
     const Model a = parse(coil + "[target]\n" + target);
     check_same(a, parse_model(write_model_toml(a), "design.toml"));
   }
+}
+
+TEST_CASE("config: non-ASCII text outside strings and comments is refused before the TOML parser", "[config]") {
+  // Found by fuzzing: toml++ 3.3.0 reaches __builtin_unreachable (undefined behaviour) when it
+  // asks whether such a character is whitespace. Strings and comments may hold any UTF-8.
+  const auto refusal = [](const std::string& text) {
+    try {
+      (void)parse_model(text, "u.toml");
+    } catch (const InputError& e) {
+      return std::string(e.what());
+    }
+    return std::string("accepted");
+  };
+  using Catch::Matchers::Contains;
+  for (const char* bad : {"a = 1 \xC2\xB5\n", "\xC2\xB5 = 1\n", "a = \xD0\xA5\n", "[project]\nname = \"x\" \xC3\xA9\n"})
+    CHECK_THAT(refusal(bad), Contains("u.toml:") && Contains("a non-ASCII character outside a quoted string or comment"));
+  CHECK_THAT(refusal("[project]\nname = \"x\" \xC3\xA9\n"), Contains("u.toml:2:12:"));
+  CHECK_THAT(refusal("s = \"\"\"x\\\n  \xC2\xA7\"\"\"\n"), Contains("u.toml:2:3:") && Contains("after a backslash"));
+  // In strings, quoted keys and comments the parser goes on (and here stops at the missing coil).
+  for (const char* fine : {"# \xC2\xB5T\n", "[project]\nname = \"50 \xC2\xB5T\"\n", "[project]\nname = '\xC2\xB5'\n",
+                           "[project]\nname = \"\"\"\xC2\xB5\n\xC2\xB5\"\"\"\n", "[project]\nname = '''\xC2\xB5'''\n",
+                           "\xEF\xBB\xBF# a byte-order mark\n"})
+    CHECK_THAT(refusal(fine), Contains("declares no [[coil]]"));
 }
