@@ -8,6 +8,9 @@ packages=(
   libcli11-dev libfmt-dev nlohmann-json3-dev catch2
   python3 python3-mpmath python3-scipy python3-numpy
   pkg-config libplplot-dev chromium python3-pil
+  # Sanitizer and fuzzing builds (scripts/ci-hardening.sh): clang with libFuzzer and the
+  # sanitizer runtimes, libomp with archer for ThreadSanitizer.
+  clang libclang-rt-14-dev libomp-14-dev
 )
 missing=()
 for p in "${packages[@]}"; do
