@@ -1458,6 +1458,12 @@ namespace {
 void refuse_non_ascii_outside_strings(std::string_view text, const std::string& source_name) {
   enum class In { code, comment, basic, literal, ml_basic, ml_literal } in = In::code;
   std::size_t line = 1, column = 0;
+  // Outside strings the parser scans a bare value up to the next space, ',', ']', '}' or '#',
+  // quotes included ("7i'µ'"): a quote glued to such a run opens no string. A dotted key may
+  // glue one to a '.' ("a.'µ' = 1") before the '='.
+  bool run = false, in_value = false;
+  int depth = 0;  // arrays and inline tables opened in a value, which may span lines
+  char prev = '\n';
   const auto refuse = [&](std::string_view where) {
     throw InputError(SourceLocation{source_name, line, column}, "",
                      fmt::format("a non-ASCII character {}; accepted: ASCII there (other characters only inside "
@@ -1475,6 +1481,9 @@ void refuse_non_ascii_outside_strings(std::string_view text, const std::string& 
       ++line;
       column = 0;
       if (in == In::comment || in == In::basic || in == In::literal) in = In::code;
+      run = false;
+      if (depth == 0) in_value = false;
+      prev = '\n';
       continue;
     }
     switch (in) {
@@ -1482,14 +1491,25 @@ void refuse_non_ascii_outside_strings(std::string_view text, const std::string& 
         if (c >= 0x80) refuse("outside a quoted string or comment");
         if (c == '#') {
           in = In::comment;
+        } else if ((c == '"' || c == '\'') && run && !(prev == '.' && !in_value)) {
+          // part of a bare run: no string
         } else if (at(R"(""")")) {
-          in = In::ml_basic, i += 2, column += 2;
+          in = In::ml_basic, i += 2, column += 2, run = false;
         } else if (at("'''")) {
-          in = In::ml_literal, i += 2, column += 2;
+          in = In::ml_literal, i += 2, column += 2, run = false;
         } else if (c == '"') {
-          in = In::basic;
+          in = In::basic, run = false;
         } else if (c == '\'') {
-          in = In::literal;
+          in = In::literal, run = false;
+        } else if (c == ' ' || c == '\t' || c == '\r' || c == ',' || c == ']' || c == '}') {
+          if ((c == ']' || c == '}') && depth > 0) --depth;
+          run = false;
+        } else if (c == '=' && !in_value) {
+          in_value = true, run = false;
+        } else if ((c == '[' || c == '{') && !run) {
+          if (in_value) ++depth;
+        } else {
+          run = true;
         }
         break;
       case In::comment:
@@ -1533,6 +1553,7 @@ void refuse_non_ascii_outside_strings(std::string_view text, const std::string& 
         }
         break;
     }
+    prev = static_cast<char>(c);
   }
 }
 

@@ -597,6 +597,11 @@ TEST_CASE("config: non-ASCII text outside strings and comments is refused before
     CHECK_THAT(refusal(bad), Contains("u.toml:") && Contains("a non-ASCII character outside a quoted string or comment"));
   CHECK_THAT(refusal("[project]\nname = \"x\" \xC3\xA9\n"), Contains("u.toml:2:12:"));
   CHECK_THAT(refusal("s = \"\"\"x\\\n  \xC2\xA7\"\"\"\n"), Contains("u.toml:2:3:") && Contains("after a backslash"));
+  // A quote glued to a bare value opens no string: the parser scans on into it.
+  CHECK_THAT(refusal("a = 7i'\xC2\xB5'\n"), Contains("u.toml:1:8:") && Contains("outside a quoted string"));
+  // Quoted parts of dotted keys and table names, and strings in arrays, may hold any UTF-8.
+  for (const char* key : {"[a.'\xC2\xB5']\n", "a.'\xC2\xB5' = 1\n", "a = ['\xC2\xB5', \"\xC2\xB5\"]\n"})
+    CHECK_THAT(refusal(key), !Contains("non-ASCII"));
   // In strings, quoted keys and comments the parser goes on (and here stops at the missing coil).
   for (const char* fine : {"# \xC2\xB5T\n", "[project]\nname = \"50 \xC2\xB5T\"\n", "[project]\nname = '\xC2\xB5'\n",
                            "[project]\nname = \"\"\"\xC2\xB5\n\xC2\xB5\"\"\"\n", "[project]\nname = '''\xC2\xB5'''\n",
