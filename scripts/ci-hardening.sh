@@ -19,7 +19,7 @@ steps=("$@")
 
 # -O1 keeps sanitizer runs fast enough; line tables suffice for reports and cost less to compile
 # than full debug information; asserts stay on (no NDEBUG).
-common=(-DCMAKE_BUILD_TYPE=Debug "-DCMAKE_CXX_FLAGS_DEBUG=-O1 -gline-tables-only" -DCOILWRIGHT_WERROR=ON -DCOILWRIGHT_BENCH=OFF)
+common=(-DCMAKE_C_COMPILER=clang -DCMAKE_CXX_COMPILER=clang++ -DCMAKE_BUILD_TYPE=Debug "-DCMAKE_CXX_FLAGS_DEBUG=-O1 -gline-tables-only" -DCOILWRIGHT_WERROR=ON -DCOILWRIGHT_BENCH=OFF)
 archer=/usr/lib/llvm-14/lib/libarcher.so
 fuzz_targets=$(sed -n 's/^set(COILWRIGHT_FUZZ_TARGETS \(.*\))$/\1/p' tests/fuzz/CMakeLists.txt)
 
@@ -32,7 +32,7 @@ timed() {  # timed <name> <command...>: runs it and prints its wall time
 }
 
 configure_asan() {
-  CC=clang CXX=clang++ cmake -S . -B build-asan "${common[@]}" -DCOILWRIGHT_FUZZ=ON >/dev/null
+  cmake -S . -B build-asan "${common[@]}" -DCOILWRIGHT_FUZZ=ON >/dev/null
 }
 
 asan() {
@@ -46,7 +46,7 @@ asan() {
 
 tsan() {
   [[ -f $archer ]] || { echo "missing $archer (Debian package libomp-14-dev)"; exit 1; }
-  CC=clang CXX=clang++ cmake -S . -B build-tsan "${common[@]}" -DCOILWRIGHT_SANITIZE=thread >/dev/null
+  cmake -S . -B build-tsan "${common[@]}" -DCOILWRIGHT_SANITIZE=thread >/dev/null
   cmake --build build-tsan -j"$jobs" --target coilwright_parallel_tests
   # libgomp and libomp are not built with TSan, so TSan cannot see the runtime's barriers and
   # joins. clang links libomp, which loads archer (OMP_TOOL_LIBRARIES): archer tells TSan about
