@@ -925,10 +925,18 @@ class Reader {
     if (g.goal == Goal::uniform) {
       if (!field) fail(at(t), "target", "goal 'uniform' requires key 'field' = [3 flux densities], e.g. [\"0 uT\", \"0 uT\", \"50 uT\"]");
       g.field_T = vec3_quantity(*field, "target.field", Dimension::flux_density);
+      // The wanted field is also the scale of every relative figure: it cannot be zero.
+      if (!(g.field_T.norm() > 0.0))
+        fail(at(*field), "target.field",
+             fmt::format("found {}, a zero field; accepted: a field with a non-zero component, e.g. [\"0 uT\", \"0 uT\", \"50 uT\"] "
+                         "(to cancel a field, use goal = \"null\")",
+                         shown(*field)));
     }
     if (g.goal == Goal::gradient) {
       if (!grad) fail(at(t), "target", "goal 'gradient' requires key 'gradient', e.g. \"10 mT/m\"");
       g.gradient_T_per_m = quantity(*grad, "target.gradient", Dimension::gradient);
+      if (!(g.gradient_T_per_m != 0.0))
+        fail(at(*grad), "target.gradient", fmt::format("found {}, a zero gradient; accepted: a non-zero gradient, e.g. \"10 mT/m\"", shown(*grad)));
     }
     if (const auto* n = t.get("tolerance")) g.tolerance = tolerance(*n);
     if (const auto* n = t.get("resolution")) {

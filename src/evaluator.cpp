@@ -241,7 +241,7 @@ double half_extent_along_axis(const Target& t) {
   return 0.0;
 }
 
-GoalSpec GoalSpec::from(const Target& t) {
+GoalSpec GoalSpec::from(const Target& t, const SourceLocation& where) {
   GoalSpec g;
   g.goal = t.goal;
   g.centre_m = t.centre_m;
@@ -264,7 +264,7 @@ GoalSpec GoalSpec::from(const Target& t) {
     const char* why = t.goal == Goal::uniform    ? "a uniform goal needs a non-zero 'field'"
                       : t.goal == Goal::gradient ? "a gradient goal needs a non-zero 'gradient' and a region with extent along the axis"
                                                  : "a null goal needs a non-zero ambient field ([target.ambient] or a survey)";
-    throw InputError(SourceLocation{}, "target.goal", why);
+    throw InputError(where, "target.goal", why);
   }
   g.tolerance_T = t.tolerance.relative ? t.tolerance.value * g.reference_T : t.tolerance.value;
   return g;
@@ -304,7 +304,7 @@ std::vector<Vec3> total_field(const Model& model, const ResponseMatrix& A, const
 }
 
 Evaluator::Evaluator(const Model& model)
-    : goal_(model.target ? GoalSpec::from(*model.target)
+    : goal_(model.target ? GoalSpec::from(*model.target, model.location_of("target.goal"))
                          : throw InputError(SourceLocation{model.source_file}, "target", "the model has no [target] table")),
       samples_(sample_region(*model.target, detect_symmetry(model))),
       boundary_(samples_.boundary),

@@ -253,7 +253,7 @@ void perturb(Model& build, const ToleranceParameter& p, double delta) {
 // ---- evaluating one build ---------------------------------------------------------------
 
 BuildEvaluator::BuildEvaluator(const Model& expanded)
-    : goal_(expanded.target ? GoalSpec::from(*expanded.target)
+    : goal_(expanded.target ? GoalSpec::from(*expanded.target, expanded.location_of("target.goal"))
                             : throw InputError(SourceLocation{expanded.source_file}, "target", "the design has no [target] table")),
       samples_(sample_region(*expanded.target, Symmetry{})),
       boundary_(samples_.boundary),

@@ -24,7 +24,8 @@ struct GoalSpec {
   double reference_T = 1.0;  // the scale of relative figures
   double tolerance_T = 0.0;  // the tolerance as an absolute deviation
 
-  static GoalSpec from(const Target& target);  // throws InputError when the goal has no scale
+  // Throws InputError, located at `where` (the target's goal key), when the goal has no scale.
+  static GoalSpec from(const Target& target, const SourceLocation& where = {});
   [[nodiscard]] Vec3 ambient_at(const Vec3& p) const { return ambient ? ambient->at(p, centre_m) : Vec3::Zero(); }
   [[nodiscard]] double deviation_T(const Vec3& p, const Vec3& total_field) const;
 };
