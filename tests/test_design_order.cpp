@@ -9,6 +9,7 @@
 #include "coilwright/config.hpp"
 #include "coilwright/field.hpp"
 #include "coilwright/search.hpp"
+#include "support/maxwell_coils.hpp"
 
 using namespace coilwright;
 
@@ -96,33 +97,8 @@ TEST_CASE("three coils: the Maxwell coil at +-sqrt(3/7) R with ampere-turns 49:6
   // ampere-turns 49/64 of the centre coil's; every term below the sixth vanishes and b6/b0 =
   // -2.0428571 (tests/reference/design_references.txt).
   const double R = 0.4;
-  const auto s = search(fmt::format(R"(
-[[circuit]]
-name = "centre"
-current = {{ min = "-10 A", max = "10 A" }}
-[[circuit]]
-name = "outer"
-current = {{ min = "-10 A", max = "10 A" }}
-[[coil]]
-name = "middle"
-shape = "loop"
-circuit = "centre"
-centre = ["0 m", "0 m", "0 m"]
-axis = [0, 0, 1]
-turns = 10
-radius = "{R} m"
-[[coil]]
-name = "ends"
-shape = "loop"
-circuit = "outer"
-centre = ["0 m", "0 m", "0 m"]
-axis = [0, 0, 1]
-turns = 10
-radius = "{ro} m"
-separation = {{ start = "{start} m", min = "{lo} m", max = "{hi} m" }}
-)", fmt::arg("R", R), fmt::arg("ro", std::sqrt(4.0 / 7.0) * R), fmt::arg("start", 0.3 * R), fmt::arg("lo", 0.1 * R),
-                                     fmt::arg("hi", 2.0 * R)) +
-                      target("uniform", R"(field = ["0 T", "0 T", "100 uT"])"));
+  const auto s = search(test::maxwell_three_coils(R, 0.3 * R, 0.1 * R, 2.0 * R) +
+                        target("uniform", R"(field = ["0 T", "0 T", "100 uT"])"));
   const Design& d = s.designs.front();
   CHECK(*d.model.coils[1].separation_m == Approx(2.0 * std::sqrt(3.0 / 7.0) * R).epsilon(kAnswer));
   const double ratio = d.model.circuits[1].current_A / d.model.circuits[0].current_A;  // equal turns

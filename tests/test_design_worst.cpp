@@ -9,6 +9,7 @@
 #include "coilwright/config.hpp"
 #include "coilwright/evaluator.hpp"
 #include "coilwright/search.hpp"
+#include "support/maxwell_coils.hpp"
 
 using namespace coilwright;
 
@@ -67,32 +68,8 @@ separation = { start = "0.3 m", min = "0.1 m", max = "1 m" }
 }
 
 TEST_CASE("over a sphere of 0.3 R the best three-coil design beats the Maxwell coil", "[search][worst]") {
-  const double ro = std::sqrt(4.0 / 7.0) * R, zo = std::sqrt(3.0 / 7.0) * R;
-  const std::string toml = fmt::format(R"(
-[[circuit]]
-name = "centre"
-current = {{ min = "-10 A", max = "10 A" }}
-[[circuit]]
-name = "outer"
-current = {{ min = "-10 A", max = "10 A" }}
-[[coil]]
-name = "middle"
-shape = "loop"
-circuit = "centre"
-centre = ["0 m", "0 m", "0 m"]
-axis = [0, 0, 1]
-turns = 10
-radius = "{R} m"
-[[coil]]
-name = "ends"
-shape = "loop"
-circuit = "outer"
-centre = ["0 m", "0 m", "0 m"]
-axis = [0, 0, 1]
-turns = 10
-radius = "{ro} m"
-separation = {{ start = "{start} m", min = "{lo} m", max = "{hi} m" }}
-)", fmt::arg("R", R), fmt::arg("ro", ro), fmt::arg("start", 1.6 * zo), fmt::arg("lo", 0.2 * R), fmt::arg("hi", 2.0 * R)) +
+  const double zo = std::sqrt(3.0 / 7.0) * R;
+  const std::string toml = test::maxwell_three_coils(R, 1.6 * zo, 0.2 * R, 2.0 * R) +
                            sphere_target(0.3 * R, "starts = 4\nmax_evaluations = 2000");
   const Model config = parse_model(toml, "three-coils.toml");
   const SearchSummary s = run_search(config);
