@@ -180,17 +180,24 @@ std::string_view type_name(const toml::node& n) {
 }
 
 // How a value was written, for messages ("the start 700 mm lies outside ...").
-std::string shown(const toml::node& n) {
-  if (const auto* s = n.as_string()) return s->get();
+// A value as the user wrote it, for messages. Arrays and tables are spelled out here rather than
+// by toml++'s formatter, which converts the log10 of a float below 1 to an unsigned integer
+// (undefined behaviour, found by fuzzing: tests/fuzz/regressions/config).
+std::string shown(const toml::node& n, bool quoted = false) {
+  if (const auto* s = n.as_string()) return quoted ? fmt::format("\"{}\"", s->get()) : s->get();
   if (const auto* i = n.as_integer()) return fmt::format("{}", i->get());
   if (const auto* f = n.as_floating_point()) return fmt::format("{}", f->get());
   if (const auto* b = n.as_boolean()) return b->get() ? "true" : "false";
-  std::ostringstream os;
-  if (const auto* a = n.as_array())
-    os << *a;
-  else if (const auto* t = n.as_table())
-    os << *t;
-  return os.str();
+  std::string out;
+  if (const auto* a = n.as_array()) {
+    for (const auto& e : *a) out += (out.empty() ? "" : ", ") + shown(e, true);
+    return "[" + out + "]";
+  }
+  if (const auto* t = n.as_table()) {
+    for (auto&& [k, v] : *t) out += fmt::format("{}{} = {}", out.empty() ? "" : ", ", k.str(), shown(v, true));
+    return "{ " + out + " }";
+  }
+  return "(a date or time)";
 }
 
 // What a free parameter table's numbers are.
