@@ -29,6 +29,8 @@
 #include "coilwright/parallel.hpp"
 #include "coilwright/search.hpp"
 
+#include "../tests/support/maxwell_coils.hpp"  // the same three coils as the search tests
+
 using namespace coilwright;
 
 namespace {
@@ -50,31 +52,8 @@ void write_points(const std::string& path, int n, double radius) {
 }
 
 std::string model_toml(const std::string& target) {
-  const double ro = std::sqrt(4.0 / 7.0) * R, zo = std::sqrt(3.0 / 7.0) * R;
-  return fmt::format(R"(
-[[circuit]]
-name = "centre"
-current = {{ min = "-10 A", max = "10 A" }}
-[[circuit]]
-name = "outer"
-current = {{ min = "-10 A", max = "10 A" }}
-[[coil]]
-name = "middle"
-shape = "loop"
-circuit = "centre"
-centre = ["0 m", "0 m", "0 m"]
-axis = [0, 0, 1]
-turns = 10
-radius = "{R} m"
-[[coil]]
-name = "ends"
-shape = "loop"
-circuit = "outer"
-centre = ["0 m", "0 m", "0 m"]
-axis = [0, 0, 1]
-turns = 10
-radius = "{ro:.17g} m"
-separation = {{ start = "{start:.17g} m", min = "{lo:.17g} m", max = "{hi:.17g} m" }}
+  const double zo = std::sqrt(3.0 / 7.0) * R;
+  return test::maxwell_three_coils(R, 1.6 * zo, 0.2 * R, 2.0 * R) + fmt::format(R"(
 [target]
 centre = ["0 m", "0 m", "0 m"]
 axis = [0, 0, 1]
@@ -88,8 +67,8 @@ seed = 1
 starts = 4
 max_evaluations = 2000
 designs = 1
-)", fmt::arg("R", R), fmt::arg("ro", ro), fmt::arg("start", 1.6 * zo), fmt::arg("lo", 0.2 * R),
-                     fmt::arg("hi", 2.0 * R), fmt::arg("target", target));
+)",
+                                                                                 fmt::arg("target", target));
 }
 
 // Worst relative deviation over `common` (a points-region model) of a found design: its coils
