@@ -55,14 +55,11 @@ void carry_over(const fs::path& from, const fs::path& to, const OwnedName& ours)
     const std::string name = it->path().filename().string();
     if (ours(name)) continue;
     const fs::path target = to / name;
+    // `recursive` covers files and folders alike; symbolic links are copied as links.
+    constexpr auto keep = fs::copy_options::recursive | fs::copy_options::copy_symlinks;
     std::error_code e;
-    if (it->is_symlink(e) || !it->is_directory(e)) {
-      fs::copy(it->path(), target, fs::copy_options::create_hard_links | fs::copy_options::copy_symlinks, e);
-      if (e) fs::copy(it->path(), target, fs::copy_options::copy_symlinks, e);
-    } else {
-      fs::copy(it->path(), target, fs::copy_options::recursive | fs::copy_options::create_hard_links | fs::copy_options::copy_symlinks, e);
-      if (e) fs::copy(it->path(), target, fs::copy_options::recursive | fs::copy_options::copy_symlinks | fs::copy_options::overwrite_existing, e);
-    }
+    fs::copy(it->path(), target, keep | fs::copy_options::create_hard_links, e);
+    if (e) fs::copy(it->path(), target, keep | fs::copy_options::overwrite_existing, e);
     if (e) fail(from, fmt::format("cannot keep the entry '{}' that is not ours", name), e.value());
   }
   if (ec) fail(from, "cannot list it", ec.value());
@@ -76,23 +73,44 @@ void sync_folder(const fs::path& dir) {
   }
 }
 
+// Where a results folder goes: its absolute path (a symbolic link to a folder followed, so the
+// link stays as the user made it; a trailing slash dropped) and the folder that holds it, which
+// is created. Throws OutputError if the path is taken by something that is not a folder.
+struct Place {
+  fs::path dir, parent;
+  bool exists = false;
+};
+
+Place resolve(const fs::path& requested) {
+  std::error_code ec;
+  Place p;
+  p.dir = fs::absolute(requested, ec).lexically_normal();
+  if (ec) fail(requested, "cannot resolve the path", ec.value());
+  if (fs::is_symlink(p.dir, ec)) p.dir = fs::canonical(p.dir, ec);
+  if (p.dir.filename().empty()) p.dir = p.dir.parent_path();
+  p.parent = p.dir.parent_path();
+  p.exists = fs::exists(p.dir, ec);
+  if (p.exists && !fs::is_directory(p.dir, ec)) fail(p.dir, "it exists and is not a folder", ENOTDIR);
+  fs::create_directories(p.parent, ec);
+  if (ec) fail(p.dir, "cannot create the folder that holds it", ec.value());
+  return p;
+}
+
+// This process's scratch folder beside the results folder: .<name>.<role>-<pid>.
+fs::path scratch_path(const Place& p, std::string_view role) {
+  return p.parent / (scratch_prefix(p.dir, role) + std::to_string(::getpid()));
+}
+
 }  // namespace
 
 void publish_folder(const fs::path& requested, const std::function<void(const fs::path&)>& write, const OwnedName& ours) {
-  // A symbolic link to a folder is followed, so the link itself stays as the user made it.
-  std::error_code ec;
-  fs::path dir = fs::absolute(requested, ec).lexically_normal();
-  if (ec) fail(requested, "cannot resolve the path", ec.value());
-  if (fs::is_symlink(dir, ec)) dir = fs::canonical(dir, ec);
-  if (dir.filename().empty()) dir = dir.parent_path();
-  const fs::path parent = dir.parent_path();
-  const bool exists = fs::exists(dir, ec);
-  if (exists && !fs::is_directory(dir, ec)) fail(dir, "it exists and is not a folder", ENOTDIR);
-  fs::create_directories(parent, ec);
-  if (ec) fail(dir, "cannot create the folder that holds it", ec.value());
+  const Place place = resolve(requested);
+  const fs::path &dir = place.dir, &parent = place.parent;
+  const bool exists = place.exists;
   remove_stale_scratch(parent, dir);
 
-  const fs::path staging = parent / (scratch_prefix(dir, "staging") + std::to_string(::getpid()));
+  std::error_code ec;
+  const fs::path staging = scratch_path(place, "staging");
   fs::remove_all(staging, ec);
   if (!fs::create_directory(staging, ec) || ec) fail(dir, fmt::format("cannot create the staging folder '{}'", staging.string()), ec ? ec.value() : EEXIST);
   try {
@@ -105,7 +123,7 @@ void publish_folder(const fs::path& requested, const std::function<void(const fs
       if (errno != EINVAL && errno != ENOSYS) fail(dir, "cannot exchange the new results with the previous ones", errno);
       // A file system without atomic exchange: two renames. A run killed between them leaves
       // the previous results complete in .<name>.previous-<pid> and no mixed folder.
-      const fs::path previous = parent / (scratch_prefix(dir, "previous") + std::to_string(::getpid()));
+      const fs::path previous = scratch_path(place, "previous");
       if (::rename(dir.c_str(), previous.c_str()) != 0) fail(dir, "cannot move the previous results aside", errno);
       if (::rename(staging.c_str(), dir.c_str()) != 0) {
         const int err = errno;
@@ -130,15 +148,10 @@ void publish_folder(const fs::path& requested, const std::function<void(const fs
 }
 
 void probe_folder(const fs::path& requested) {
+  const Place place = resolve(requested);
+  const fs::path probe = scratch_path(place, "staging");
   std::error_code ec;
-  const fs::path dir = fs::absolute(requested, ec).lexically_normal();
-  if (ec) fail(requested, "cannot resolve the path", ec.value());
-  if (fs::exists(dir, ec) && !fs::is_directory(dir, ec)) fail(dir, "it exists and is not a folder", ENOTDIR);
-  const fs::path parent = (dir.filename().empty() ? dir.parent_path() : dir).parent_path();
-  fs::create_directories(parent, ec);
-  if (ec) fail(dir, "cannot create the folder that holds it", ec.value());
-  const fs::path probe = parent / (scratch_prefix(dir, "staging") + std::to_string(::getpid()));
-  if (!fs::create_directory(probe, ec) || ec) fail(dir, "cannot create a folder beside it", ec ? ec.value() : EEXIST);
+  if (!fs::create_directory(probe, ec) || ec) fail(place.dir, "cannot create a folder beside it", ec ? ec.value() : EEXIST);
   fs::remove(probe, ec);
 }
 
